@@ -1,0 +1,72 @@
+/**
+ * The command line: argv in, exit status out. Commands live in
+ * src/commands/*, each exporting a `run` over validated options; this file
+ * only parses, prints and maps errors to exit codes:
+ * 0 ok, 1 bad input or usage, 2 internal error.
+ */
+import yargs, { type Argv } from 'yargs';
+import { DataError, UsageError } from './core/errors.js';
+import { demoCommand } from './commands/demo.js';
+import type { CommandModule } from './commands/command.js';
+
+/** Commands of the design that later work will build; they refuse to run. */
+const PLANNED: [string, string][] = [
+  ['split', 'cut a gold treebank into k folds for jackknifing'],
+  ['jackknife', 'parse every fold with a base model trained on the other folds'],
+  ['prepare', 'score, featurise and hash n-best lists into binary shards'],
+  ['train', 'train a re-ranker on a shard directory'],
+  ['eval', 'base, oracle and re-ranked F1 of a model on a shard directory'],
+  ['rerank', 'pick the best tree of each n-best list with a model'],
+  ['inspect', 'show records, features and top weights of shards or a model'],
+  ['export', 'write shards as sparse ranking text for other trainers'],
+];
+
+const BUILT: CommandModule[] = [demoCommand];
+
+export async function main(argv: string[]): Promise<number> {
+  let exitCode = 0;
+  const debug = argv.includes('--debug');
+  const report = (error: unknown): number => {
+    if (error instanceof UsageError || error instanceof DataError) {
+      console.error(`sheaf: ${error.message}`);
+      if (debug && error.stack) console.error(error.stack);
+      return 1;
+    }
+    console.error(`sheaf: internal error: ${error instanceof Error ? (debug ? error.stack : error.message) : String(error)}`);
+    if (!debug) console.error('(run again with --debug for the stack)');
+    return 2;
+  };
+
+  let cli: Argv = yargs(argv)
+    .scriptName('sheaf')
+    .usage('$0 <command> [options]\n\nPrepare, train and evaluate discriminative re-rankers over n-best parses.')
+    .option('debug', { type: 'boolean', description: 'show stack traces of errors', global: true })
+    .strict()
+    .demandCommand(1, 'expected a command; see the list above')
+    .recommendCommands()
+    .help()
+    .version()
+    .wrap(Math.min(100, process.stdout.columns || 100))
+    .exitProcess(false)
+    .fail((message, error) => {
+      if (error) throw error;
+      throw new UsageError(`${message}\n(see \`sheaf --help\`)`);
+    });
+
+  for (const cmd of BUILT) {
+    cli = cli.command(cmd.name, cmd.describe, cmd.builder, async (args) => {
+      exitCode = await cmd.handler(args as Record<string, unknown>);
+    });
+  }
+  for (const [name, describe] of PLANNED) {
+    cli = cli.command(`${name}`, `${describe} (not available yet)`, (y) => y.strict(false), () => {
+      throw new UsageError(`\`sheaf ${name}\` is not available yet in this version; see the README for what is built`);
+    });
+  }
+  try {
+    await cli.parseAsync();
+  } catch (error) {
+    return report(error);
+  }
+  return exitCode;
+}

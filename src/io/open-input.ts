@@ -1,0 +1,137 @@
+/**
+ * Opens an input path as a stream of byte chunks: `-` is stdin, gzip is
+ * recognised by its magic bytes (not the file name) and inflated on the fly,
+ * and text is validated as UTF-8 line by line so that a bad byte costs one
+ * record, not the file.
+ */
+import { createReadStream } from 'node:fs';
+import { isUtf8 } from 'node:buffer';
+import { Readable } from 'node:stream';
+import { createGunzip } from 'node:zlib';
+import { DataError, UsageError } from '../core/errors.js';
+
+const CHUNK = 1 << 20;
+
+async function* rawBytes(path: string): AsyncGenerator<Buffer> {
+  const stream = path === '-' ? process.stdin : createReadStream(path, { highWaterMark: CHUNK });
+  try {
+    for await (const chunk of stream) yield chunk as Buffer;
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    if (code === 'ENOENT') throw new UsageError(`cannot read \`${path}\`: no such file (expected a path to an existing file, or \`-\` for stdin)`, { cause: error });
+    if (code === 'EISDIR') throw new UsageError(`cannot read \`${path}\`: it is a directory (expected a file)`, { cause: error });
+    if (code === 'EACCES') throw new UsageError(`cannot read \`${path}\`: permission denied`, { cause: error });
+    throw error;
+  }
+}
+
+/** Byte chunks of the file, gunzipped when it starts with the gzip magic bytes. */
+export async function* readBytes(path: string): AsyncGenerator<Buffer> {
+  const source = rawBytes(path);
+  const first = await source.next();
+  if (first.done) return;
+  const head = first.value;
+  if (head.length >= 2 && head[0] === 0x1f && head[1] === 0x8b) {
+    async function* again(): AsyncGenerator<Buffer> {
+      yield head;
+      yield* source;
+    }
+    const gunzip = Readable.from(again()).pipe(createGunzip({ chunkSize: CHUNK }));
+    try {
+      for await (const chunk of gunzip) yield chunk as Buffer;
+    } catch (error) {
+      const msg = (error as Error).message;
+      throw new DataError('truncated', `expected a complete gzip stream: ${msg}`, { file: path }, { cause: error });
+    }
+    return;
+  }
+  yield head;
+  yield* source;
+}
+
+export interface BadLine {
+  line: number;
+  column: number;
+  reason: string;
+}
+
+export interface TextPiece {
+  /** Decoded text: whole lines, except when a single line is longer than the chunk size. */
+  text: string;
+  /** 1-based line number of the first character of `text`. */
+  line: number;
+  /** Lines of this piece that are not valid UTF-8 (decoded with U+FFFD). */
+  bad: BadLine[];
+}
+
+/** Offset of the first byte that breaks UTF-8 in `b` (only called on invalid lines). */
+function firstInvalid(b: Buffer): number {
+  let i = 0;
+  while (i < b.length) {
+    const c = b[i];
+    if (c < 0x80) {
+      i++;
+      continue;
+    }
+    const n = c >= 0xc2 && c <= 0xdf ? 1 : c >= 0xe0 && c <= 0xef ? 2 : c >= 0xf0 && c <= 0xf4 ? 3 : 0;
+    // isUtf8 on the one sequence also rejects overlong forms and surrogates.
+    if (n === 0 || i + n >= b.length || !isUtf8(b.subarray(i, i + n + 1))) return i;
+    i += n + 1;
+  }
+  return b.length;
+}
+
+function checkLines(bytes: Buffer, firstLine: number): BadLine[] {
+  const bad: BadLine[] = [];
+  let line = firstLine;
+  let s = 0;
+  while (s <= bytes.length) {
+    let e = bytes.indexOf(10, s);
+    if (e < 0) e = bytes.length;
+    const lineBytes = bytes.subarray(s, e);
+    if (!isUtf8(lineBytes)) {
+      const at = firstInvalid(lineBytes);
+      const column = lineBytes.toString('utf8', 0, at).length + 1;
+      bad.push({ line, column, reason: `expected UTF-8 text, got the byte 0x${lineBytes[at].toString(16).padStart(2, '0')} that no UTF-8 sequence allows here` });
+    }
+    line++;
+    s = e + 1;
+  }
+  return bad;
+}
+
+function countLines(bytes: Buffer): number {
+  let n = 0;
+  for (let i = bytes.indexOf(10); i >= 0; i = bytes.indexOf(10, i + 1)) n++;
+  return n;
+}
+
+/** Decodes byte chunks into text pieces that end at line ends. */
+export async function* decodeText(chunks: AsyncIterable<Buffer>): AsyncGenerator<TextPiece> {
+  let carry: Buffer | null = null;
+  let line = 1;
+  const emit = (bytes: Buffer): TextPiece => {
+    const valid = isUtf8(bytes);
+    const piece: TextPiece = { text: bytes.toString('utf8'), line, bad: valid ? [] : checkLines(bytes, line) };
+    line += countLines(bytes);
+    return piece;
+  };
+  for await (const chunk of chunks) {
+    const buf: Buffer = carry ? Buffer.concat([carry, chunk]) : chunk;
+    let cut = buf.lastIndexOf(10) + 1;
+    if (cut === 0) {
+      if (buf.length < CHUNK) {
+        carry = buf;
+        continue;
+      }
+      // One very long line: cut at a character boundary and go on.
+      cut = buf.length;
+      while (cut > 0 && (buf[cut - 1] & 0xc0) === 0x80) cut--;
+      if (cut > 0 && buf[cut - 1] >= 0xc0) cut--;
+      if (cut === 0) cut = buf.length;
+    }
+    carry = cut < buf.length ? Buffer.from(buf.subarray(cut)) : null;
+    yield emit(buf.subarray(0, cut));
+  }
+  if (carry && carry.length > 0) yield emit(carry);
+}
