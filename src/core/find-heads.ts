@@ -1,47 +1,110 @@
 /**
  * Head finding with the table in head-table.ts. Pure.
  *
- * `headChildren(tree)` gives, for every constituent, the index of its head
- * child (-1 for words); `headWords(tree)` percolates to the head word's node.
- * Both walk the preorder arrays backwards so children are done before parents.
+ * `headChildren(tree)` gives, for every constituent, the node index of its
+ * head child (-1 for words); `headWords(tree)` percolates to the head word's
+ * node. Rules are compiled per vocabulary to label ids, so the hot path
+ * compares integers and allocates one small scratch array per tree.
  */
 import { COORDINATORS, DEFAULT_RULE, HEAD_TABLE, NP_LIKE, NP_STEPS, type Direction } from './head-table.js';
+import type { Vocabulary } from './interner.js';
 import type { Tree } from './tree.js';
 
-function labelOf(tree: Tree, node: number): string {
-  return tree.isWord[node] ? '' : tree.vocab.labels.name(tree.sym[node]);
+interface CompiledStep {
+  direction: Direction;
+  ids: Int32Array;
 }
 
-function scan(children: number[], labels: string[], direction: Direction, wanted: readonly string[]): number {
-  for (const w of wanted) {
-    if (direction === 'left') {
-      for (let k = 0; k < children.length; k++) if (labels[k] === w) return k;
+interface CompiledRule {
+  /** NP-like: the last-child-POS test, then the steps, then the last child. */
+  np: boolean;
+  steps: CompiledStep[];
+  /** Fallback when no step matches: first (left) or last (right) child. */
+  fallback: Direction;
+}
+
+/** Compiles the table to the label ids of one vocabulary (ids are stable per vocabulary). */
+class CompiledTable {
+  private readonly rules: (CompiledRule | undefined)[] = [];
+  readonly posId: number;
+  private readonly coordIds: Set<number>;
+
+  constructor(private readonly vocab: Vocabulary) {
+    this.posId = vocab.labels.intern('POS');
+    this.coordIds = new Set([...COORDINATORS].map((l) => vocab.labels.intern(l)));
+  }
+
+  isCoordinator(id: number): boolean {
+    return this.coordIds.has(id);
+  }
+
+  rule(labelId: number): CompiledRule {
+    let r = this.rules[labelId];
+    if (r === undefined) {
+      const name = this.vocab.labels.name(labelId);
+      const ids = (labels: readonly string[]) => Int32Array.from(labels, (l) => this.vocab.labels.intern(l));
+      if (NP_LIKE.has(name)) {
+        r = { np: true, steps: NP_STEPS.map((s) => ({ direction: s.direction, ids: ids(s.labels) })), fallback: 'right' };
+      } else {
+        const rule = HEAD_TABLE[name] ?? DEFAULT_RULE;
+        r = { np: false, steps: [{ direction: rule.direction, ids: ids(rule.priority) }], fallback: rule.direction };
+      }
+      this.rules[labelId] = r;
+    }
+    return r;
+  }
+}
+
+const tables = new WeakMap<Vocabulary, CompiledTable>();
+
+function tableFor(vocab: Vocabulary): CompiledTable {
+  let t = tables.get(vocab);
+  if (!t) {
+    t = new CompiledTable(vocab);
+    tables.set(vocab, t);
+  }
+  return t;
+}
+
+/** Label id of a child for matching: words match nothing (-1). */
+function childLabel(tree: Tree, c: number): number {
+  return tree.isWord[c] ? -1 : tree.sym[c];
+}
+
+function scan(tree: Tree, kids: Int32Array, n: number, step: CompiledStep): number {
+  const ids = step.ids;
+  for (let w = 0; w < ids.length; w++) {
+    const want = ids[w];
+    if (step.direction === 'left') {
+      for (let k = 0; k < n; k++) if (childLabel(tree, kids[k]) === want) return k;
     } else {
-      for (let k = children.length - 1; k >= 0; k--) if (labels[k] === w) return k;
+      for (let k = n - 1; k >= 0; k--) if (childLabel(tree, kids[k]) === want) return k;
     }
   }
   return -1;
 }
 
+let scratch = new Int32Array(64);
+
 /** Position (0-based, among the children) of the head child of constituent `node`. */
 export function headChildPosition(tree: Tree, node: number): number {
-  const children: number[] = [];
-  for (let c = node + 1; c < tree.end[node]; c = tree.end[c]) children.push(c);
-  if (children.length <= 1) return children.length - 1;
-  const labels = children.map((c) => labelOf(tree, c));
-  const parent = labelOf(tree, node);
-  let h: number;
-  if (NP_LIKE.has(parent)) {
-    h = -1;
-    if (labels[labels.length - 1] === 'POS') h = labels.length - 1;
-    for (let s = 0; h < 0 && s < NP_STEPS.length; s++) h = scan(children, labels, NP_STEPS[s].direction, NP_STEPS[s].labels);
-    if (h < 0) h = labels.length - 1;
-  } else {
-    const rule = HEAD_TABLE[parent] ?? DEFAULT_RULE;
-    h = scan(children, labels, rule.direction, rule.priority);
-    if (h < 0) h = rule.direction === 'left' ? 0 : labels.length - 1;
+  let n = 0;
+  for (let c = node + 1; c < tree.end[node]; c = tree.end[c]) {
+    if (n === scratch.length) {
+      const s = new Int32Array(n * 2);
+      s.set(scratch);
+      scratch = s;
+    }
+    scratch[n++] = c;
   }
-  if (h >= 2 && COORDINATORS.has(labels[h - 1])) h -= 2;
+  if (n <= 1) return n - 1;
+  const table = tableFor(tree.vocab);
+  const rule = table.rule(tree.sym[node]);
+  let h = -1;
+  if (rule.np && childLabel(tree, scratch[n - 1]) === table.posId) h = n - 1;
+  for (let s = 0; h < 0 && s < rule.steps.length; s++) h = scan(tree, scratch, n, rule.steps[s]);
+  if (h < 0) h = rule.fallback === 'left' ? 0 : n - 1;
+  if (h >= 2 && table.isCoordinator(childLabel(tree, scratch[h - 1]))) h -= 2;
   return h;
 }
 

@@ -3,6 +3,8 @@
  * numbers. One interner per worker: ids are local and never written to disk
  * (hashing works on the strings' UTF-8 bytes, which ids only cache).
  */
+const encoder = new TextEncoder();
+
 export class Interner {
   private readonly ids = new Map<string, number>();
   private readonly strings: string[] = [];
@@ -10,6 +12,7 @@ export class Interner {
   // a substring without slicing it (hot path: ~60 atoms per tree).
   private slots = new Int32Array(1024).fill(-1);
   private hashes: number[] = [];
+  private utf8: (Uint8Array | undefined)[] = [];
 
   /** The id of `s`, adding it if new. */
   intern(s: string): number {
@@ -62,6 +65,16 @@ export class Interner {
   private rehash(): void {
     this.slots = new Int32Array(this.slots.length * 2).fill(-1);
     for (let id = 0; id < this.strings.length; id++) this.place(id, this.hashes[id]);
+  }
+
+  /** The UTF-8 bytes of string `id`, encoded once and cached (feature keys are built from these). */
+  bytes(id: number): Uint8Array {
+    let b = this.utf8[id];
+    if (b === undefined) {
+      b = encoder.encode(this.name(id));
+      this.utf8[id] = b;
+    }
+    return b;
   }
 
   /** The id of `s`, or -1 if it was never interned. */

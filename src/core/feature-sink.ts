@@ -1,0 +1,192 @@
+/**
+ * Builds feature keys as UTF-8 bytes, hashes them (signed MurmurHash3 x86_32,
+ * scikit-learn FeatureHasher's rule) and sums the values per bucket.
+ *
+ * Hot path: a key is written into one reused byte buffer from pre-encoded
+ * pieces (template prefixes, interned labels and words), never built as a JS
+ * string; the canonical key string is only decoded when names are kept.
+ * The canonical key is the pieces joined by single spaces, so a user can
+ * rebuild any key in Python and get the same bucket and sign.
+ */
+import { bucketOf, murmur3 } from './murmur3.js';
+
+const SPACE = 32;
+const decoder = new TextDecoder();
+const encoder = new TextEncoder();
+
+export interface SparseVector {
+  /** Bucket indices, ascending, unique. */
+  idx: Uint32Array;
+  /** Summed signed values, one per index. */
+  val: Float32Array;
+}
+
+/** Keeps the first few canonical keys seen per bucket, and counts distinct keys. */
+export class NameBook {
+  readonly byBucket = new Map<number, string[]>();
+  private readonly seen = new Set<string>();
+
+  constructor(readonly perBucket: number) {}
+
+  add(bucket: number, key: string): void {
+    if (this.seen.has(key)) return;
+    this.seen.add(key);
+    const list = this.byBucket.get(bucket);
+    if (!list) this.byBucket.set(bucket, [key]);
+    else if (list.length < this.perBucket) list.push(key);
+  }
+
+  /** Distinct keys seen, buckets they occupy, and the collision rate 1 − buckets/keys. */
+  collisions(): { keys: number; buckets: number; rate: number } {
+    const keys = this.seen.size;
+    const buckets = this.byBucket.size;
+    return { keys, buckets, rate: keys === 0 ? 0 : 1 - buckets / keys };
+  }
+}
+
+/** Encodes a constant key piece once (template prefixes, fixed words). */
+export function piece(text: string): Uint8Array {
+  return encoder.encode(text);
+}
+
+export class FeatureSink {
+  private buf = new Uint8Array(512);
+  private len = 0;
+  // Open-addressing accumulator: bucket → slot; reset after each take().
+  private keys = new Int32Array(4096).fill(-1);
+  private vals = new Float64Array(4096);
+  private touched = new Int32Array(1024);
+  private nTouched = 0;
+
+  constructor(readonly bits: number, readonly seed: number, readonly names: NameBook | null = null) {}
+
+  /** Starts a key with its (pre-encoded) prefix, normally the template id and kind. */
+  begin(prefix: Uint8Array): this {
+    this.len = 0;
+    this.write(prefix);
+    return this;
+  }
+
+  /** Appends a space and a pre-encoded piece. */
+  add(bytes: Uint8Array): this {
+    if (this.len + bytes.length + 1 > this.buf.length) this.grow(this.len + bytes.length + 1);
+    this.buf[this.len++] = SPACE;
+    this.buf.set(bytes, this.len);
+    this.len += bytes.length;
+    return this;
+  }
+
+  /** Appends a space and a string piece (for rare, non-hot pieces). */
+  addText(text: string): this {
+    return this.add(encoder.encode(text));
+  }
+
+  /** Hashes the key built so far and adds `value` (times its sign) to its bucket. */
+  emit(value = 1): void {
+    const h = murmur3(this.buf, this.len, this.seed);
+    const bucket = bucketOf(h, this.bits);
+    if (this.names) this.names.add(bucket, decoder.decode(this.buf.subarray(0, this.len)));
+    this.accumulate(bucket, h >= 0 ? value : -value);
+  }
+
+  /** The canonical key built so far (for tests and inspection). */
+  currentKey(): string {
+    return decoder.decode(this.buf.subarray(0, this.len));
+  }
+
+  /** The summed vector since the last take(), sorted by index; resets. */
+  take(): SparseVector {
+    const n = this.nTouched;
+    const idx = new Uint32Array(n);
+    for (let k = 0; k < n; k++) idx[k] = this.keys[this.touched[k]];
+    idx.sort();
+    const val = new Float32Array(n);
+    const mask = this.keys.length - 1;
+    for (let k = 0; k < n; k++) {
+      const b = idx[k];
+      let s = hashSlot(b) & mask;
+      while (this.keys[s] !== b) s = (s + 1) & mask;
+      val[k] = this.vals[s];
+    }
+    for (let k = 0; k < n; k++) {
+      const s = this.touched[k];
+      this.keys[s] = -1;
+      this.vals[s] = 0;
+    }
+    this.nTouched = 0;
+    return dropZeros(idx, val);
+  }
+
+  private write(bytes: Uint8Array): void {
+    if (this.len + bytes.length > this.buf.length) this.grow(this.len + bytes.length);
+    this.buf.set(bytes, this.len);
+    this.len += bytes.length;
+  }
+
+  private grow(need: number): void {
+    const b = new Uint8Array(Math.max(need, this.buf.length * 2));
+    b.set(this.buf.subarray(0, this.len));
+    this.buf = b;
+  }
+
+  private accumulate(bucket: number, v: number): void {
+    const mask = this.keys.length - 1;
+    let s = hashSlot(bucket) & mask;
+    for (;;) {
+      const k = this.keys[s];
+      if (k === bucket) {
+        this.vals[s] += v;
+        return;
+      }
+      if (k === -1) break;
+      s = (s + 1) & mask;
+    }
+    this.keys[s] = bucket;
+    this.vals[s] = v;
+    if (this.nTouched === this.touched.length) {
+      const t = new Int32Array(this.touched.length * 2);
+      t.set(this.touched);
+      this.touched = t;
+    }
+    this.touched[this.nTouched++] = s;
+    if (this.nTouched * 2 > this.keys.length) this.rehash();
+  }
+
+  private rehash(): void {
+    const oldKeys = this.keys;
+    const oldVals = this.vals;
+    const oldTouched = this.touched.slice(0, this.nTouched);
+    this.keys = new Int32Array(oldKeys.length * 2).fill(-1);
+    this.vals = new Float64Array(oldKeys.length * 2);
+    const mask = this.keys.length - 1;
+    for (let k = 0; k < oldTouched.length; k++) {
+      const b = oldKeys[oldTouched[k]];
+      let s = hashSlot(b) & mask;
+      while (this.keys[s] !== -1) s = (s + 1) & mask;
+      this.keys[s] = b;
+      this.vals[s] = oldVals[oldTouched[k]];
+      this.touched[k] = s;
+    }
+  }
+}
+
+function hashSlot(b: number): number {
+  return Math.imul(b, 0x9e3779b1) >>> 7;
+}
+
+/** Features whose values cancelled to exactly 0 are absent. */
+function dropZeros(idx: Uint32Array, val: Float32Array): SparseVector {
+  let zeros = 0;
+  for (let k = 0; k < val.length; k++) if (val[k] === 0) zeros++;
+  if (zeros === 0) return { idx, val };
+  const i2 = new Uint32Array(idx.length - zeros);
+  const v2 = new Float32Array(idx.length - zeros);
+  let j = 0;
+  for (let k = 0; k < val.length; k++) {
+    if (val[k] !== 0) {
+      i2[j] = idx[k];
+      v2[j++] = val[k];
+    }
+  }
+  return { idx: i2, val: v2 };
+}

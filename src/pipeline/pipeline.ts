@@ -1,0 +1,126 @@
+/**
+ * A pipeline file, validated: the ordered stages with their options
+ * defaulted, and the feature templates configured. Nothing here reads data;
+ * an invalid pipeline fails before any input is opened, naming the block and
+ * listing the valid choices.
+ */
+import { UsageError } from '../core/errors.js';
+import type { ScoringOptions } from '../core/parseval.js';
+import { checkOptions, type OptionValues } from '../features/options.js';
+import { TEMPLATES } from '../features/registry.js';
+import type { ConfigureContext, ConfiguredTemplate } from '../features/template.js';
+import { STAGES } from './stages.js';
+
+export const PIPELINE_FORMAT = 'sheaf-pipeline/1';
+
+export interface TemplateBlock {
+  template: string;
+  options: OptionValues;
+}
+
+/** The resolved configuration: everything defaulted; what the manifest records and digests. */
+export interface PipelineConfig {
+  format: typeof PIPELINE_FORMAT;
+  stages: { stage: string; options: OptionValues }[];
+  templates: TemplateBlock[];
+}
+
+export interface Pipeline {
+  config: PipelineConfig;
+  templates: ConfiguredTemplate[];
+  parse: { stripFunctionTags: boolean; dropEmpty: boolean; maxCandidates: number };
+  scoring: ScoringOptions;
+  hashing: { bits: number; seed: number; pseudoConstant: boolean; names: number };
+  shards: { sentencesPerShard: number; bytesPerShard: number };
+}
+
+const list = (xs: Iterable<string>) => [...xs].map((x) => `\`${x}\``).join(', ');
+
+function isObject(v: unknown): v is Record<string, unknown> {
+  return v !== null && typeof v === 'object' && !Array.isArray(v);
+}
+
+/** Validates a parsed pipeline file. `name` names it in messages. */
+export function buildPipeline(raw: unknown, name: string, context: ConfigureContext): Pipeline {
+  if (!isObject(raw)) throw new UsageError(`${name}: expected a JSON object with \`format\` and \`stages\``);
+  for (const key of Object.keys(raw)) {
+    if (!['format', 'description', 'stages'].includes(key)) {
+      throw new UsageError(`${name}: unknown key \`${key}\`; expected one of: \`format\`, \`description\`, \`stages\``);
+    }
+  }
+  if (raw.format !== PIPELINE_FORMAT) {
+    throw new UsageError(`${name}: expected \`format\` to be \`${PIPELINE_FORMAT}\`, got \`${JSON.stringify(raw.format)}\``);
+  }
+  if (!Array.isArray(raw.stages) || raw.stages.length === 0) throw new UsageError(`${name}: expected \`stages\` to be a non-empty list of stage blocks`);
+  const byId = new Map(STAGES.map((s) => [s.id, s]));
+  const stages: PipelineConfig['stages'] = [];
+  const provided = new Set<string>();
+  let templates: TemplateBlock[] = [];
+  let lastIndex = -1;
+  raw.stages.forEach((block: unknown, k: number) => {
+    const where = `${name}: stages[${k}]`;
+    if (!isObject(block) || typeof block.stage !== 'string') throw new UsageError(`${where}: expected an object with a \`stage\` name; valid stages: ${list(byId.keys())}`);
+    const spec = byId.get(block.stage);
+    if (!spec) throw new UsageError(`${where}: unknown stage \`${block.stage}\`; valid stages: ${list(byId.keys())}`);
+    const index = STAGES.indexOf(spec);
+    if (index <= lastIndex) throw new UsageError(`${where}: stage \`${spec.id}\` is out of order or repeated; the order is: ${list(STAGES.map((s) => s.id))}`);
+    lastIndex = index;
+    for (const need of spec.needs) {
+      if (!provided.has(need)) {
+        const by = STAGES.find((s) => s.adds.includes(need));
+        throw new UsageError(`${where}: stage \`${spec.id}\` needs the record field \`${need}\`, which no earlier stage adds (add \`${by?.id}\` before it)`);
+      }
+    }
+    const options = checkOptions(block, spec.options, `${where} (${spec.id})`, ['stage', ...(spec.id === 'extract-features.v1' ? ['templates'] : [])]);
+    if (spec.id === 'extract-features.v1') templates = checkTemplates(block.templates, `${where} (${spec.id})`);
+    for (const a of spec.adds) provided.add(a);
+    stages.push({ stage: spec.id, options });
+  });
+  const missing = STAGES.filter((s) => !stages.some((b) => b.stage === s.id));
+  if (missing.length > 0) throw new UsageError(`${name}: missing stage(s) ${list(missing.map((s) => s.id))}; a prepare pipeline lists all of: ${list(STAGES.map((s) => s.id))}`);
+  const opt = (id: string) => stages.find((s) => s.stage === id)!.options;
+  const configured = templates.map((b) => TEMPLATES.get(b.template)!.configure(b.options, context));
+  const scoring = opt('score-candidates.v1');
+  const hashing = opt('hash-features.v1');
+  return {
+    config: { format: PIPELINE_FORMAT, stages, templates },
+    templates: configured,
+    parse: {
+      stripFunctionTags: opt('parse-candidates.v1').stripFunctionTags as boolean,
+      dropEmpty: opt('parse-candidates.v1').dropEmpty as boolean,
+      maxCandidates: opt('read-nbest.v1').maxCandidates as number,
+    },
+    scoring: {
+      punctuation: scoring.punctuation as string[],
+      equivalent: scoring.equivalent as string[][],
+      rootLabels: scoring.rootLabels as string[],
+      labeled: scoring.labeled as boolean,
+    },
+    hashing: {
+      bits: hashing.bits as number,
+      seed: hashing.seed as number,
+      pseudoConstant: hashing.pseudoConstant as boolean,
+      names: hashing.names as number,
+    },
+    shards: {
+      sentencesPerShard: opt('write-shards.v1').sentencesPerShard as number,
+      bytesPerShard: opt('write-shards.v1').bytesPerShard as number,
+    },
+  };
+}
+
+function checkTemplates(raw: unknown, where: string): TemplateBlock[] {
+  if (!Array.isArray(raw) || raw.length === 0) {
+    throw new UsageError(`${where}: expected \`templates\` to be a non-empty list of {"template": ...} blocks; valid templates: ${list(TEMPLATES.keys())}`);
+  }
+  const seen = new Set<string>();
+  return raw.map((b: unknown, k: number) => {
+    const at = `${where} templates[${k}]`;
+    if (!isObject(b) || typeof b.template !== 'string') throw new UsageError(`${at}: expected an object with a \`template\` name; valid templates: ${list(TEMPLATES.keys())}`);
+    const tpl = TEMPLATES.get(b.template);
+    if (!tpl) throw new UsageError(`${at}: unknown template \`${b.template}\`; valid templates: ${list(TEMPLATES.keys())}`);
+    if (seen.has(tpl.id)) throw new UsageError(`${at}: template \`${tpl.id}\` is listed twice`);
+    seen.add(tpl.id);
+    return { template: tpl.id, options: checkOptions(b, tpl.options, `${at} (${tpl.id})`, ['template']) };
+  });
+}
