@@ -8,7 +8,7 @@
  * The canonical key is the pieces joined by single spaces, so a user can
  * rebuild any key in Python and get the same bucket and sign.
  */
-import { bucketOf, murmur3 } from './murmur3.js';
+import { murmur3 } from './murmur3.js';
 
 const SPACE = 32;
 const decoder = new TextDecoder();
@@ -56,9 +56,15 @@ export class FeatureSink {
   private keys = new Int32Array(4096).fill(-1);
   private vals = new Float64Array(4096);
   private touched = new Int32Array(1024);
+  private order = new Uint32Array(1024);
   private nTouched = 0;
 
-  constructor(readonly bits: number, readonly seed: number, readonly names: NameBook | null = null) {}
+  private readonly mask: number;
+
+  constructor(readonly bits: number, readonly seed: number, readonly names: NameBook | null = null) {
+    if (!Number.isInteger(bits) || bits < 1 || bits > 31) throw new RangeError(`expected hash bits from 1 to 31, got ${bits}`);
+    this.mask = (2 ** bits - 1) | 0;
+  }
 
   /** Starts a key with its (pre-encoded) prefix, normally the template id and kind. */
   begin(prefix: Uint8Array): this {
@@ -69,10 +75,14 @@ export class FeatureSink {
 
   /** Appends a space and a pre-encoded piece. */
   add(bytes: Uint8Array): this {
-    if (this.len + bytes.length + 1 > this.buf.length) this.grow(this.len + bytes.length + 1);
-    this.buf[this.len++] = SPACE;
-    this.buf.set(bytes, this.len);
-    this.len += bytes.length;
+    const n = bytes.length;
+    if (this.len + n + 1 > this.buf.length) this.grow(this.len + n + 1);
+    const buf = this.buf;
+    let o = this.len;
+    buf[o++] = SPACE;
+    // A loop beats TypedArray.set for pieces this short.
+    for (let k = 0; k < n; k++) buf[o++] = bytes[k];
+    this.len = o;
     return this;
   }
 
@@ -84,7 +94,7 @@ export class FeatureSink {
   /** Hashes the key built so far and adds `value` (times its sign) to its bucket. */
   emit(value = 1): void {
     const h = murmur3(this.buf, this.len, this.seed);
-    const bucket = bucketOf(h, this.bits);
+    const bucket = Math.abs(h) & this.mask; // = bucketOf(h, bits)
     if (this.names) this.names.add(bucket, decoder.decode(this.buf.subarray(0, this.len)));
     this.accumulate(bucket, h >= 0 ? value : -value);
   }
@@ -97,30 +107,46 @@ export class FeatureSink {
   /** The summed vector since the last take(), sorted by index; resets. */
   take(): SparseVector {
     const n = this.nTouched;
-    const idx = new Uint32Array(n);
-    for (let k = 0; k < n; k++) idx[k] = this.keys[this.touched[k]];
-    idx.sort();
-    const val = new Float32Array(n);
+    if (this.order.length < n) this.order = new Uint32Array(n * 2);
+    const order = this.order.subarray(0, n);
+    for (let k = 0; k < n; k++) order[k] = this.keys[this.touched[k]];
+    order.sort();
     const mask = this.keys.length - 1;
+    // Values that cancelled to 0 are absent: count the survivors first.
+    let kept = 0;
     for (let k = 0; k < n; k++) {
-      const b = idx[k];
+      const b = order[k];
       let s = hashSlot(b) & mask;
       while (this.keys[s] !== b) s = (s + 1) & mask;
-      val[k] = this.vals[s];
+      this.touched[k] = s; // reuse: slot of the k-th smallest bucket
+      if (this.vals[s] !== 0) kept++;
     }
+    // One buffer for both arrays: one allocation per candidate.
+    const buffer = new ArrayBuffer(kept * 8);
+    const idx = new Uint32Array(buffer, 0, kept);
+    const val = new Float32Array(buffer, kept * 4, kept);
+    let o = 0;
     for (let k = 0; k < n; k++) {
       const s = this.touched[k];
+      const v = this.vals[s];
+      if (v !== 0) {
+        idx[o] = order[k];
+        val[o++] = v;
+      }
       this.keys[s] = -1;
       this.vals[s] = 0;
     }
     this.nTouched = 0;
-    return dropZeros(idx, val);
+    return { idx, val };
   }
 
   private write(bytes: Uint8Array): void {
-    if (this.len + bytes.length > this.buf.length) this.grow(this.len + bytes.length);
-    this.buf.set(bytes, this.len);
-    this.len += bytes.length;
+    const n = bytes.length;
+    if (this.len + n > this.buf.length) this.grow(this.len + n);
+    const buf = this.buf;
+    let o = this.len;
+    for (let k = 0; k < n; k++) buf[o++] = bytes[k];
+    this.len = o;
   }
 
   private grow(need: number): void {
@@ -174,19 +200,3 @@ function hashSlot(b: number): number {
   return Math.imul(b, 0x9e3779b1) >>> 7;
 }
 
-/** Features whose values cancelled to exactly 0 are absent. */
-function dropZeros(idx: Uint32Array, val: Float32Array): SparseVector {
-  let zeros = 0;
-  for (let k = 0; k < val.length; k++) if (val[k] === 0) zeros++;
-  if (zeros === 0) return { idx, val };
-  const i2 = new Uint32Array(idx.length - zeros);
-  const v2 = new Float32Array(idx.length - zeros);
-  let j = 0;
-  for (let k = 0; k < val.length; k++) {
-    if (val[k] !== 0) {
-      i2[j] = idx[k];
-      v2[j++] = val[k];
-    }
-  }
-  return { idx: i2, val: v2 };
-}

@@ -53,7 +53,9 @@ export function murmur3String(s: string, seed = 0): number {
  * |h| mod 2^bits and the sign is + when h ≥ 0. |−2^31| is taken as 2^31.
  */
 export function bucketOf(h: number, bits: number): number {
-  return bits >= 32 ? Math.abs(h) : Math.abs(h) % 2 ** bits;
+  // For a power-of-two table, |h| mod 2^bits is a mask; |−2^31| & mask is 0,
+  // as 2^31 mod 2^bits is (bits ≤ 31).
+  return Math.abs(h) & ((2 ** bits - 1) | 0);
 }
 
 export function signOf(h: number): 1 | -1 {

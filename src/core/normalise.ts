@@ -7,7 +7,7 @@
  *   constituent left without words.
  */
 import type { Vocabulary } from './interner.js';
-import { TreeBuilder, type Tree } from './tree.js';
+import { scratchBuilder, type TreeBuilder, type Tree } from './tree.js';
 
 /** `NP-SBJ-1` → `NP`; `-NONE-` → `-NONE-`. Pure string form of the rule. */
 export function stripFunctionTags(label: string): string {
@@ -74,7 +74,7 @@ export function normaliseTree(tree: Tree, options: NormaliseOptions = {}, builde
     }
   }
   if (!keep[0]) return null;
-  const b = builder && builder.vocab === vocab ? builder : new TreeBuilder(vocab);
+  const b = builder && builder.vocab === vocab ? builder : scratchBuilder(vocab);
   b.reset();
   const ends: number[] = [];
   for (let i = 0; i < n; i++) {

@@ -14,7 +14,7 @@
  */
 import { DataError } from './errors.js';
 import type { Vocabulary } from './interner.js';
-import { TreeBuilder, treeFromData, type Tree } from './tree.js';
+import { scratchBuilder, TreeBuilder, treeFromData, type Tree } from './tree.js';
 
 const OPEN = 40; // (
 const CLOSE = 41; // )
@@ -65,7 +65,7 @@ export interface ParseOptions {
  * Throws DataError with line/column relative to `text`.
  */
 export function parseTree(text: string, vocab: Vocabulary, options: ParseOptions = {}): Tree {
-  const b = options.builder && options.builder.vocab === vocab ? options.builder : new TreeBuilder(vocab);
+  const b = options.builder && options.builder.vocab === vocab ? options.builder : scratchBuilder(vocab);
   b.reset();
   const labels = vocab.labels;
   const words = vocab.words;

@@ -211,3 +211,18 @@ export function treeFromData(vocab: Vocabulary, data: Int32Array, n: number, w: 
     wordNodes: data.subarray(6 * n, 6 * n + w),
   };
 }
+
+const scratchBuilders = new WeakMap<Vocabulary, TreeBuilder>();
+
+/**
+ * A reusable builder for `vocab`. Safe because building is synchronous and
+ * finish() copies out: no two trees are ever built on it at once.
+ */
+export function scratchBuilder(vocab: Vocabulary): TreeBuilder {
+  let b = scratchBuilders.get(vocab);
+  if (!b) {
+    b = new TreeBuilder(vocab);
+    scratchBuilders.set(vocab, b);
+  }
+  return b;
+}

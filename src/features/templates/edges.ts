@@ -31,14 +31,20 @@ export const edges: FeatureTemplate = {
         const last = words[t.stop[i] - 1];
         const before = t.start[i] > 0 ? words[t.start[i] - 1] : -1;
         const after = t.stop[i] < words.length ? words[t.stop[i]] : -1;
-        const pieces = [
-          () => wordBytes(v, first), () => wordBytes(v, last), () => tagBytes(v, first), () => tagBytes(v, last),
-          () => (before < 0 ? BOS : wordBytes(v, before)), () => (after < 0 ? EOS : wordBytes(v, after)),
-          () => (before < 0 ? BOS : tagBytes(v, before)), () => (after < 0 ? EOS : tagBytes(v, after)),
-        ];
         for (let k = 0; k < PARTS.length; k++) {
           if (!on[k]) continue;
-          sink.begin(prefixes[k]).add(labelBytes(v, i)).add(pieces[k]());
+          let b: Uint8Array;
+          switch (k) {
+            case 0: b = wordBytes(v, first); break;
+            case 1: b = wordBytes(v, last); break;
+            case 2: b = tagBytes(v, first); break;
+            case 3: b = tagBytes(v, last); break;
+            case 4: b = before < 0 ? BOS : wordBytes(v, before); break;
+            case 5: b = after < 0 ? EOS : wordBytes(v, after); break;
+            case 6: b = before < 0 ? BOS : tagBytes(v, before); break;
+            default: b = after < 0 ? EOS : tagBytes(v, after);
+          }
+          sink.begin(prefixes[k]).add(labelBytes(v, i)).add(b);
           sink.emit();
         }
       },
