@@ -7,13 +7,13 @@
 import yargs, { type Argv } from 'yargs';
 import { DataError, UsageError } from './core/errors.js';
 import { demoCommand } from './commands/demo.js';
+import { prepareCommand } from './commands/prepare.js';
 import type { CommandModule } from './commands/command.js';
 
 /** Commands of the design that later work will build; they refuse to run. */
 const PLANNED: [string, string][] = [
   ['split', 'cut a gold treebank into k folds for jackknifing'],
   ['jackknife', 'parse every fold with a base model trained on the other folds'],
-  ['prepare', 'score, featurise and hash n-best lists into binary shards'],
   ['train', 'train a re-ranker on a shard directory'],
   ['eval', 'base, oracle and re-ranked F1 of a model on a shard directory'],
   ['rerank', 'pick the best tree of each n-best list with a model'],
@@ -21,7 +21,7 @@ const PLANNED: [string, string][] = [
   ['export', 'write shards as sparse ranking text for other trainers'],
 ];
 
-const BUILT: CommandModule[] = [demoCommand];
+const BUILT: CommandModule[] = [prepareCommand, demoCommand];
 
 export async function main(argv: string[]): Promise<number> {
   let exitCode = 0;

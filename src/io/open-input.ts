@@ -25,9 +25,12 @@ async function* rawBytes(path: string): AsyncGenerator<Buffer> {
   }
 }
 
-/** Byte chunks of the file, gunzipped when it starts with the gzip magic bytes. */
-export async function* readBytes(path: string): AsyncGenerator<Buffer> {
-  const source = rawBytes(path);
+/**
+ * Byte chunks of the file, gunzipped when it starts with the gzip magic bytes.
+ * `tap` sees the raw (compressed) bytes, e.g. to digest the input as read.
+ */
+export async function* readBytes(path: string, tap?: (chunk: Buffer) => void): AsyncGenerator<Buffer> {
+  const source = tapped(rawBytes(path), tap);
   const first = await source.next();
   if (first.done) return;
   const head = first.value;
@@ -47,6 +50,13 @@ export async function* readBytes(path: string): AsyncGenerator<Buffer> {
   }
   yield head;
   yield* source;
+}
+
+async function* tapped(chunks: AsyncGenerator<Buffer>, tap?: (chunk: Buffer) => void): AsyncGenerator<Buffer> {
+  for await (const c of chunks) {
+    tap?.(c);
+    yield c;
+  }
 }
 
 export interface BadLine {

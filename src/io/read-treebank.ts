@@ -23,10 +23,12 @@ export interface ReadTreebankOptions {
   onBad?: (error: DataError) => void;
   maxTreeChars?: number;
   columnOneStartsTree?: boolean;
+  /** Sees the raw bytes of the file (for its digest). */
+  tap?: (chunk: Buffer) => void;
 }
 
 export async function* readTreebank(file: string, options: ReadTreebankOptions): AsyncGenerator<TreeRecord> {
-  const pieces = decodeText(readBytes(file));
+  const pieces = decodeText(readBytes(file, options.tap));
   const bad = (e: DataError): void => {
     const located = e.file === undefined ? e.relocate({ file }) : e;
     if (!options.onBad) throw located;

@@ -1,0 +1,31 @@
+/** Stage `parse-candidates.v1`: candidate tree texts → normalised trees. */
+import { DataError } from '../core/errors.js';
+import type { Vocabulary } from '../core/interner.js';
+import { normaliseTree } from '../core/normalise.js';
+import { parseTree } from '../core/read-brackets.js';
+import type { Tree } from '../core/tree.js';
+import type { CandidateText } from '../records.js';
+
+export interface ParseOptions {
+  stripFunctionTags: boolean;
+  dropEmpty: boolean;
+}
+
+/** Parses one tree text; `what` names it in errors (`candidate 3`, `the gold tree`). */
+export function parseNormalised(text: string, vocab: Vocabulary, options: ParseOptions, what: string): Tree {
+  let tree: Tree;
+  try {
+    tree = parseTree(text, vocab);
+  } catch (e) {
+    if (e instanceof DataError) throw new DataError(e.code, `${what} does not parse (at its line ${e.line}, column ${e.column}): ${e.reason}`);
+    throw e;
+  }
+  const n = normaliseTree(tree, { stripTags: options.stripFunctionTags, dropEmpty: options.dropEmpty });
+  if (!n) throw new DataError('empty-tree', `${what} holds only empty elements`);
+  return n;
+}
+
+export function parseCandidates(options: ParseOptions) {
+  return (candidates: readonly CandidateText[], vocab: Vocabulary): Tree[] =>
+    candidates.map((c, k) => parseNormalised(c.tree, vocab, options, `candidate ${k}`));
+}

@@ -1,0 +1,179 @@
+/**
+ * `sheaf prepare` end to end on small data made from the demo corpus
+ * (synthetic n-best lists). Outside checks: an independent MessagePack
+ * decoder (@msgpack/msgpack, npm) reads every shard and must agree with
+ * sheaf's own reader; determinism across worker counts and input splits is
+ * checked by sha256.
+ */
+import { createHash } from 'node:crypto';
+import { mkdtempSync, readFileSync, writeFileSync, readdirSync, existsSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { gzipSync } from 'node:zlib';
+import { decodeMulti } from '@msgpack/msgpack';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { runPrepare, SimulatedStop, type PrepareOptions } from '../src/commands/prepare.js';
+import { makeDemoData, type DemoData } from '../src/demo/make-demo-data.js';
+import { readShard, readManifest } from '../src/io/read-shards.js';
+
+const root = fileURLToPath(new URL('..', import.meta.url));
+const dir = mkdtempSync(join(tmpdir(), 'sheaf-prepare-'));
+let data: DemoData;
+let gold: string;
+let pipeline: string;
+let n = 0;
+const out = () => join(dir, `out${n++}`);
+
+beforeAll(async () => {
+  // The first 90 demo trees, and a pipeline with small shards so runs span several.
+  const trees = readFileSync(join(root, 'demo-corpus/huts.mrg'), 'utf8').split(/\n(?=\( \()/).slice(0, 90);
+  gold = join(dir, 'gold.mrg');
+  writeFileSync(gold, trees.join('\n') + '\n');
+  data = await makeDemoData(gold, join(dir, 'in'), { folds: 3, nbest: 8 });
+  const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
+  p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 25;
+  p.stages.find((s: any) => s.stage === 'extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
+  pipeline = join(dir, 'pipeline.json');
+  writeFileSync(pipeline, JSON.stringify(p));
+});
+
+const run = (o: Partial<PrepareOptions> = {}) => runPrepare({ gold, nbest: data.dumps, pipeline, out: out(), plan: data.plan, workers: 0, quiet: true, ...o });
+const shardHashes = (d: string) => readManifest(d).shards.map((s) => s.sha256);
+const sha = (f: string) => `sha256:${createHash('sha256').update(readFileSync(f)).digest('hex')}`;
+
+describe('sheaf prepare', () => {
+  it('writes every sentence, reconciles totals, and records shard sha256 that match the files', async () => {
+    const s = await run();
+    expect(s).toMatchObject({ read: 90, written: 90, rejected: 0, goldTrees: 90, goldWithoutNbest: 0, shards: 4 });
+    const m = readManifest(s.out);
+    for (const sh of m.shards) expect(sha(join(s.out, sh.file))).toBe(sh.sha256);
+    expect(m.shards.map((x) => x.sentences)).toEqual([25, 25, 25, 15]);
+    expect(readdirSync(s.out).filter((f) => f.endsWith('.tmp'))).toEqual([]);
+  });
+
+  it('gives byte-identical shards with 0, 1, 2 and 4 workers', async () => {
+    const hashes = [];
+    for (const workers of [0, 1, 2, 4]) hashes.push(shardHashes((await run({ workers, batch: 3 })).out));
+    for (const h of hashes.slice(1)) expect(h).toEqual(hashes[0]);
+  });
+
+  it('gives byte-identical shards when the same input is split into different dump files', async () => {
+    const all = data.dumps.map((f) => readFileSync(f, 'utf8')).join('');
+    const lines = all.trim().split('\n');
+    const one = join(dir, 'all.jsonl');
+    writeFileSync(one, all);
+    const a = join(dir, 'part-a.jsonl');
+    const b = join(dir, 'part-b.jsonl.gz');
+    writeFileSync(a, lines.slice(0, 37).join('\n') + '\n');
+    writeFileSync(b, gzipSync(lines.slice(37).join('\n') + '\n'));
+    const whole = shardHashes((await run({ nbest: [one] })).out);
+    const split = shardHashes((await run({ nbest: [a, b] })).out);
+    expect(split).toEqual(whole);
+  });
+
+  it('reads back the same records with an independent MessagePack decoder (@msgpack/msgpack)', async () => {
+    const s = await run();
+    const m = readManifest(s.out);
+    let sentences = 0;
+    for (const sh of m.shards) {
+      const ours = [];
+      for await (const r of readShard(join(s.out, sh.file))) ours.push(r);
+      const theirs = [...decodeMulti(readFileSync(join(s.out, sh.file)))] as any[];
+      expect(theirs.length).toBe(ours.length);
+      theirs.forEach((t, k) => {
+        const o = ours[k];
+        expect(Object.keys(t)).toEqual(['id', 'fold', 'gold', 'flag', 'cands']);
+        expect([t.id, t.fold, t.gold, t.flag]).toEqual([o.id, o.fold, o.gold, o.flag]);
+        t.cands.forEach((c: any, j: number) => {
+          const oc = o.cands[j];
+          expect([c.score, c.rank, c.matched, c.test]).toEqual([oc.score, oc.rank, oc.matched, oc.test]);
+          const dv = new DataView(c.idx.buffer, c.idx.byteOffset, c.idx.byteLength);
+          const idx = Array.from({ length: c.idx.byteLength / 4 }, (_, i) => dv.getUint32(4 * i, true));
+          const vv = new DataView(c.val.buffer, c.val.byteOffset, c.val.byteLength);
+          const val = Array.from({ length: c.val.byteLength / 4 }, (_, i) => vv.getFloat32(4 * i, true));
+          expect(idx).toEqual(Array.from(oc.idx));
+          expect(val).toEqual(Array.from(oc.val));
+          for (let i = 1; i < idx.length; i++) expect(idx[i]).toBeGreaterThan(idx[i - 1]);
+        });
+        sentences++;
+      });
+    }
+    expect(sentences).toBe(90);
+  });
+
+  it('resumes an interrupted run from the last complete shard and gives the same bytes', async () => {
+    const full = shardHashes((await run()).out);
+    const o = out();
+    await expect(runPrepare({ gold, nbest: data.dumps, pipeline, out: o, plan: data.plan, workers: 2, quiet: true, stopAfterShards: 2 })).rejects.toBeInstanceOf(SimulatedStop);
+    expect(existsSync(join(o, 'manifest.json'))).toBe(false);
+    const again = await runPrepare({ gold, nbest: data.dumps, pipeline, out: o, plan: data.plan, workers: 2, quiet: true });
+    expect(again.resumedFromShard).toBe(2);
+    expect(shardHashes(o)).toEqual(full);
+    expect(readFileSync(join(o, 'rejects.jsonl'), 'utf8')).toBe('');
+    const done = await runPrepare({ gold, nbest: data.dumps, pipeline, out: o, plan: data.plan, workers: 2, quiet: true });
+    expect(done.upToDate).toBe(true);
+  });
+
+  it('refuses lists from the wrong fold\'s model when given the plan, naming sentence and folds', async () => {
+    const lines = readFileSync(data.dumps[0], 'utf8').trim().split('\n');
+    const bad = JSON.parse(lines[0]);
+    bad.fold = 1;
+    const f = join(dir, 'leaky.jsonl');
+    writeFileSync(f, [JSON.stringify(bad), ...lines.slice(1)].join('\n') + '\n');
+    const s = await run({ nbest: [f] });
+    expect(s.rejected).toBe(1);
+    const rej = readFileSync(join(s.out, 'rejects.jsonl'), 'utf8').trim().split('\n').map((l) => JSON.parse(l));
+    expect(rej[0]).toMatchObject({ file: f, line: 1, id: bad.id, code: 'leak' });
+    expect(rej[0].reason).toContain(`sentence \`${bad.id}\` is in fold 0 of the plan, but this list comes from the base model of fold 1`);
+  });
+
+  it('rejects each bad record with file, line and reason, keeps empty lists, and reconciles', async () => {
+    const lines = readFileSync(data.dumps[0], 'utf8').trim().split('\n');
+    const rec = (k: number) => JSON.parse(lines[k]);
+    const mutate = (k: number, f: (r: any) => void) => { const r = rec(k); f(r); return JSON.stringify(r); };
+    const body = [
+      lines[0],                                                            // 1 ok
+      '{"id": "2", "candidates": [',                                       // 2 malformed JSON
+      mutate(2, (r) => { delete r.candidates; }),                          // 3 missing field
+      mutate(3, (r) => { r.candidates[0].score = '-3.5'; }),               // 4 non-numeric score
+      lines[4].replace(/"score":-?[0-9.]+/, '"score":NaN'),                // 5 NaN (not JSON)
+      mutate(5, (r) => { r.candidates[1].tree = '(S (NP (NN rope)'; }),    // 6 tree does not parse
+      mutate(6, (r) => { r.candidates[0].tree = r.candidates[0].tree.replace(/\(NN ([^)]+)\)/, '(NN zebra)'); }), // 7 yield differs
+      lines[0],                                                            // 8 duplicate id
+      mutate(7, (r) => { r.id = 'no-such-id'; }),                          // 9 no gold
+      mutate(8, (r) => { r.candidates = []; }),                            // 10 no candidates: kept
+    ].join('\n') + '\n';
+    const f = join(dir, 'bad.jsonl');
+    writeFileSync(f, body);
+    const gz = gzipSync(lines.slice(9).join('\n') + '\n');
+    const g = join(dir, 'cut.jsonl.gz');
+    writeFileSync(g, gz.subarray(0, Math.floor(gz.length / 2)));
+    const s = await run({ nbest: [f, g] });
+    const rej = readFileSync(join(s.out, 'rejects.jsonl'), 'utf8').trim().split('\n').map((l) => JSON.parse(l));
+    const byLine = rej.filter((r) => r.file === f).map((r) => [r.line, r.code]);
+    expect(byLine).toEqual([[2, 'bad-json'], [3, 'bad-field'], [4, 'bad-field'], [5, 'bad-json'], [6, 'unbalanced'], [7, 'yield-mismatch'], [8, 'duplicate-id'], [9, 'no-gold']]);
+    expect(rej.find((r) => r.code === 'yield-mismatch').reason).toMatch(/candidate 0: .*gold `[^`]+`, candidate `zebra`/);
+    expect(rej.find((r) => r.file === g)).toMatchObject({ code: 'truncated' });
+    expect(s.read).toBe(s.written + s.rejected);
+    expect(s.noCandidates).toBe(1);
+    const m = readManifest(s.out);
+    const flagged = [];
+    for (const sh of m.shards) for await (const r of readShard(join(s.out, sh.file))) if (r.flag) flagged.push([r.id, r.flag, r.cands.length]);
+    expect(flagged).toEqual([[rec(8).id, 'no-candidates', 0]]);
+  });
+
+  it('stops at the first bad record with --strict', async () => {
+    const f = join(dir, 'strict.jsonl');
+    writeFileSync(f, '{"id": "1", "candidates": [\n');
+    await expect(run({ nbest: [f], strict: true })).rejects.toThrow(/strict\.jsonl:1.*stopped by --strict/);
+  });
+
+  it('fails before reading any data when the pipeline is invalid', async () => {
+    const p = join(dir, 'broken-pipeline.json');
+    writeFileSync(p, JSON.stringify({ format: 'sheaf-pipeline/1', stages: [{ stage: 'read-nbest.v1', bogus: 1 }] }));
+    const o = out();
+    await expect(run({ pipeline: p, out: o })).rejects.toThrow(/unknown option `bogus`/);
+    expect(existsSync(o)).toBe(false);
+  });
+});
