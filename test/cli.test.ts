@@ -19,10 +19,21 @@ describe('sheaf CLI', () => {
     }
   });
 
-  it('runs the demo on the shipped corpus', () => {
-    const r = sheaf('demo');
+  it('runs the demo on the shipped corpus and prints base and oracle F1 as JSON', () => {
+    const r = sheaf('demo', '--json', '--workers', '1');
     expect(r.status).toBe(0);
-    expect(r.stdout).toMatch(/read 1200 trees \(\d+ words\), 0 rejected/);
+    const s = JSON.parse(r.stdout);
+    expect(s.prepare).toMatchObject({ read: 1200, written: 1200, rejected: 0 });
+    for (const k of ['base', 'oracle']) expect(Object.keys(s[k]).sort()).toEqual(['f1', 'precision', 'recall', 'sentences']);
+    // The oracle can only be at least as good as the base 1-best.
+    expect(s.oracle.f1).toBeGreaterThanOrEqual(s.base.f1);
+    expect(s.reranked).toBeNull();
+  });
+
+  it('refuses a prepare without its required options, naming them', () => {
+    const r = sheaf('prepare', '--gold', 'x.mrg');
+    expect(r.status).toBe(1);
+    expect(r.stderr).toMatch(/Missing required arguments?: .*nbest/);
   });
 
   it('refuses an unknown command with status 1 and a hint', () => {

@@ -1,69 +1,79 @@
 /**
- * `sheaf demo`: runs what is built so far on the shipped demo corpus (invented
- * mountain-hut logs). Today that is the tree core: read, normalise, count,
- * and show one tree with its head words. It says what is not built yet.
+ * `sheaf demo`: the job end to end on the shipped demo corpus (invented
+ * mountain-hut logs), as far as it is built: a fold plan and synthetic n-best
+ * lists per fold (a stand-in for `split` + `jackknife`, which are not built
+ * yet), then `prepare` into shards, then base and oracle F1 read back from the
+ * shards. Re-ranked F1 needs `train` / `eval`, not built yet: it is reported
+ * as not available, never invented.
  */
+import { mkdirSync } from 'node:fs';
+import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { dir as tmpDir } from 'tmp-promise';
 import type { Argv } from 'yargs';
-import { createVocabulary } from '../core/interner.js';
-import { headWords } from '../core/find-heads.js';
-import { normaliseTree } from '../core/normalise.js';
-import { productionsOf, formatProduction } from '../core/tree-views.js';
-import { writeTree } from '../core/write-brackets.js';
-import { isPreterminal } from '../core/tree.js';
-import type { DataError } from '../core/errors.js';
-import { readTreebank } from '../io/read-treebank.js';
+import { F1Table, type F1Row } from '../core/f1-table.js';
+import { makeDemoData } from '../demo/make-demo-data.js';
+import { readShardDir } from '../io/read-shards.js';
 import type { CommandModule } from './command.js';
+import { runPrepare, type PrepareSummary } from './prepare.js';
 
 export const DEMO_TREEBANK = fileURLToPath(new URL('../../demo-corpus/huts.mrg', import.meta.url));
+export const DEMO_PIPELINE = fileURLToPath(new URL('../../pipelines/demo.json', import.meta.url));
 
 export interface DemoSummary {
-  treebank: string;
-  trees: number;
-  rejected: number;
-  words: number;
-  distinctRules: number;
-  emptyElementsDropped: number;
+  dir: string;
+  base: F1Row;
+  oracle: F1Row;
+  reranked: null;
+  bootstrap: null;
+  notAvailable: string;
+  prepare: PrepareSummary;
 }
 
-export async function runDemo(print: (line: string) => void): Promise<DemoSummary> {
-  const vocab = createVocabulary();
-  const bad: DataError[] = [];
-  const rules = new Set<string>();
-  let trees = 0;
-  let words = 0;
-  let dropped = 0;
-  let example: string | null = null;
-  for await (const rec of readTreebank(DEMO_TREEBANK, { vocab, onBad: (e) => bad.push(e) })) {
-    const tree = normaliseTree(rec.tree);
-    if (!tree) continue;
-    trees++;
-    words += tree.wordNodes.length;
-    dropped += rec.tree.wordNodes.length - tree.wordNodes.length;
-    for (const p of productionsOf(tree)) if (typeof p.rhs[0] === 'string') rules.add(formatProduction(p));
-    if (example === null && dropped > 0) {
-      const heads = headWords(tree);
-      const lines = [`  ${writeTree(rec.tree)}`, `  normalised: ${writeTree(tree)}`, '  head words:'];
-      for (let i = 0; i < tree.size; i++) {
-        if (tree.isWord[i] || isPreterminal(tree, i)) continue;
-        lines.push(`    ${vocab.labels.name(tree.sym[i]).padEnd(6)} ${vocab.words.name(tree.sym[heads[i]])}`);
-      }
-      example = `tree ${rec.id} (${rec.file.split('/').pop()}:${rec.line}):\n${lines.join('\n')}`;
-    }
-  }
-  print(`sheaf demo: the tree core on the shipped demo corpus`);
-  print(`read ${trees} trees (${words} words), ${bad.length} rejected; ${dropped} empty elements dropped; ${rules.size} distinct phrasal rules`);
-  if (example) print(example);
-  print('not built yet: split, jackknife, prepare, train, eval, rerank, inspect, export (the demo grows as they land)');
-  return { treebank: DEMO_TREEBANK, trees, rejected: bad.length, words, distinctRules: rules.size, emptyElementsDropped: dropped };
+export async function runDemo(options: { out?: string; quiet?: boolean; workers?: number }, print: (line: string) => void): Promise<DemoSummary> {
+  let dir = options.out;
+  if (!dir) dir = (await tmpDir({ prefix: 'sheaf-demo-' })).path;
+  mkdirSync(dir, { recursive: true });
+  const data = await makeDemoData(DEMO_TREEBANK, join(dir, 'inputs'), { folds: 5, nbest: 20 });
+  print(`sheaf demo: ${data.sentences} invented hut-log sentences, 5 folds, 20 synthetic candidates each (stand-in for \`sheaf jackknife\`)`);
+  const prepare = await runPrepare({
+    gold: DEMO_TREEBANK,
+    nbest: data.dumps,
+    pipeline: DEMO_PIPELINE,
+    out: join(dir, 'shards'),
+    plan: data.plan,
+    workers: options.workers,
+    quiet: options.quiet ?? false,
+  });
+  const table = new F1Table();
+  for await (const s of readShardDir(join(dir, 'shards'))) table.add(s);
+  const { base, oracle } = table.rows();
+  const row = (name: string, r: F1Row | null) =>
+    r ? `${name.padEnd(10)} ${r.precision.toFixed(2).padStart(9)} ${r.recall.toFixed(2).padStart(9)} ${r.f1.toFixed(2).padStart(9)} ${String(r.sentences).padStart(9)}` : `${name.padEnd(10)} not available yet (needs \`sheaf train\` and \`sheaf eval\`)`;
+  print('');
+  print(`${'F1 table'.padEnd(10)} ${'precision'.padStart(9)} ${'recall'.padStart(9)} ${'F1'.padStart(9)} ${'sentences'.padStart(9)}`);
+  print(row('base', base));
+  print(row('oracle', oracle));
+  print(row('re-ranked', null));
+  print('');
+  print(`shards, manifest and rejects log: ${join(dir, 'shards')}`);
+  return { dir, base, oracle, reranked: null, bootstrap: null, notAvailable: 'reranked and bootstrap need `sheaf train` and `sheaf eval`, not built yet', prepare };
 }
 
 export const demoCommand: CommandModule = {
   name: 'demo',
-  describe: 'run what is built so far on the shipped demo corpus',
-  builder: (y: Argv) => y.example('$0 demo', 'read, normalise and head-annotate the demo treebank'),
-  handler: async () => {
-    await runDemo((line) => console.log(line));
+  describe: 'run the job end to end on the shipped demo corpus (as far as it is built)',
+  builder: (y: Argv) =>
+    y
+      .option('out', { alias: 'o', type: 'string', description: 'keep everything in this folder (default: a temporary folder)' })
+      .option('json', { type: 'boolean', default: false, description: 'print one JSON summary on stdout' })
+      .option('workers', { type: 'number', description: 'worker threads for prepare' })
+      .example('$0 demo', 'prepare the demo corpus and print base and oracle F1')
+      .example('$0 demo -o demo-run --json', 'keep the outputs and print a JSON summary'),
+  handler: async (args) => {
+    const json = args.json as boolean;
+    const summary = await runDemo({ out: args.out as string | undefined, quiet: json, workers: args.workers as number | undefined }, json ? () => {} : (l) => console.log(l));
+    if (json) console.log(JSON.stringify(summary));
     return 0;
   },
 };

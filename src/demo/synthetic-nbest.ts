@@ -1,8 +1,8 @@
 /**
  * Synthetic n-best lists for the demo and tests: each gold tree is varied by
  * seeded random edits (relabel a phrase, flatten one, group two adjacent
- * siblings) into distinct candidates with scores that loosely prefer fewer
- * edits. A stand-in for a base parser until `sheaf jackknife` exists; the
+ * siblings) into distinct candidates with noisy scores that loosely prefer
+ * fewer edits; about three lists in ten miss the gold tree. A stand-in for a base parser until `sheaf jackknife` exists; the
  * words never change, so every candidate aligns with its gold tree.
  */
 import type { Vocabulary } from '../core/interner.js';
@@ -66,14 +66,16 @@ export function syntheticCandidates(gold: Tree, k: number, rand: () => number, v
   const seen = new Set<string>();
   const out: { tree: string; score: number; edits: number }[] = [];
   const goldText = write(toNodes(gold));
-  for (let attempt = 0; out.length < k && attempt < k * 6; attempt++) {
+  // Like a real base parser, the list sometimes misses the gold tree.
+  const withGold = rand() < 0.7;
+  for (let attempt = withGold ? 0 : 1; out.length < k && attempt < k * 6; attempt++) {
     const edits = attempt === 0 ? 0 : 1 + Math.floor(rand() * 3);
     const root = toNodes(parseTree(goldText, vocab)) as Node;
     for (let e = 0; e < edits; e++) edit(root, rand);
     const text = write(root);
     if (seen.has(text)) continue;
     seen.add(text);
-    out.push({ tree: text, score: -(20 + 0.9 * gold.wordNodes.length + 1.5 * edits + 3 * rand()), edits });
+    out.push({ tree: text, score: -(20 + 0.9 * gold.wordNodes.length + 1.0 * edits + 5 * rand()), edits });
   }
   out.sort((a, b) => b.score - a.score);
   return out.map((c) => ({ tree: c.tree, score: Math.round(c.score * 1000) / 1000 }));
