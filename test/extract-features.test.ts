@@ -11,6 +11,7 @@ import { normaliseTree } from '../src/core/normalise.js';
 import { parseTree } from '../src/core/read-brackets.js';
 import { FeatureExtractor } from '../src/features/extract-features.js';
 import { pruneConstant } from '../src/features/prune-features.js';
+import { candidateView } from '../src/features/candidate-view.js';
 import { TEMPLATES } from '../src/features/registry.js';
 import { checkOptions } from '../src/features/options.js';
 
@@ -76,6 +77,17 @@ describe('FeatureExtractor', () => {
     expect(c.rate).toBeGreaterThan(0);
     const [bucket, names] = [...ex.names!.byBucket][0];
     for (const n of names) expect(bucketOf(murmur3String(n), 8)).toBe(bucket);
+  });
+
+  it('gives exactly the uncached result when subtrees are shared between candidates', () => {
+    const all = [...TEMPLATES.keys()].filter((t) => t !== 'lexicon.v1').map(conf);
+    const C = '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (NNS crates) (PP (TO to) (NP (DT the) (NN hut))))))';
+    const D = '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (NNS crates)) (ADVP (TO to) (NP (DT the) (NN hut)))))';
+    const cands = candidates([A, B, C, D, A.replace('(NP (DT the) (NN porter))', '(NP (DT the) (JJ porter))')]);
+    const ex = new FeatureExtractor({ templates: all, bits: 18, seed: 0 });
+    const cached = ex.sentence(cands);
+    const plain = pruneConstant(cands.map((c) => ex.candidate(candidateView(c.tree, c.score, c.rank))));
+    expect(cached.map((v) => [Array.from(v.idx), Array.from(v.val)])).toEqual(plain.map((v) => [Array.from(v.idx), Array.from(v.val)]));
   });
 
   it('is deterministic across vocabularies (ids are never hashed, only strings)', () => {

@@ -21,6 +21,31 @@ export interface SparseVector {
   val: Float32Array;
 }
 
+/**
+ * Hands out vectors as views into shared chunks: one allocation per chunk
+ * instead of one per vector (ArrayBuffer allocation dominated take()).
+ */
+export class VectorArena {
+  private idx = new Uint32Array(0);
+  private val = new Float32Array(0);
+  private used = 0;
+
+  constructor(private readonly chunk = 1 << 15) {}
+
+  alloc(n: number): SparseVector {
+    if (this.used + n > this.idx.length) {
+      const size = Math.max(this.chunk, n);
+      const buffer = new ArrayBuffer(size * 8);
+      this.idx = new Uint32Array(buffer, 0, size);
+      this.val = new Float32Array(buffer, size * 4, size);
+      this.used = 0;
+    }
+    const v = { idx: this.idx.subarray(this.used, this.used + n), val: this.val.subarray(this.used, this.used + n) };
+    this.used += n;
+    return v;
+  }
+}
+
 /** Keeps the first few canonical keys seen per bucket, and counts distinct keys. */
 export class NameBook {
   readonly byBucket = new Map<number, string[]>();
@@ -96,7 +121,51 @@ export class FeatureSink {
     const h = murmur3(this.buf, this.len, this.seed);
     const bucket = Math.abs(h) & this.mask; // = bucketOf(h, bits)
     if (this.names) this.names.add(bucket, decoder.decode(this.buf.subarray(0, this.len)));
-    this.accumulate(bucket, h >= 0 ? value : -value);
+    const v = h >= 0 ? value : -value;
+    if (this.capLen >= 0) {
+      if (this.capLen === this.capBuckets.length) {
+        const b = new Int32Array(this.capLen * 2);
+        b.set(this.capBuckets);
+        this.capBuckets = b;
+        const c = new Float64Array(this.capLen * 2);
+        c.set(this.capValues);
+        this.capValues = c;
+      }
+      this.capBuckets[this.capLen] = bucket;
+      this.capValues[this.capLen++] = v;
+    }
+    this.accumulate(bucket, v);
+  }
+
+  // Capture: while on, every (bucket, signed value) emitted is also recorded,
+  // so a caller can replay the same features later without rebuilding keys.
+  private capBuckets = new Int32Array(256);
+  private capValues = new Float64Array(256);
+  private capLen = -1;
+
+  startCapture(): void {
+    this.capLen = 0;
+  }
+
+  /** Stops capturing; returns how many features were captured (read them with capturedBuckets/Values). */
+  endCapture(): number {
+    const n = Math.max(0, this.capLen);
+    this.capLen = -1;
+    return n;
+  }
+
+  /** The capture buffers (valid until the next startCapture()). */
+  get capturedBuckets(): Int32Array {
+    return this.capBuckets;
+  }
+
+  get capturedValues(): Float64Array {
+    return this.capValues;
+  }
+
+  /** Adds already-hashed features (from a capture) to the current vector. */
+  replay(buckets: Int32Array, values: Float64Array, from = 0, to = buckets.length): void {
+    for (let k = from; k < to; k++) this.accumulate(buckets[k], values[k]);
   }
 
   /** The canonical key built so far (for tests and inspection). */
@@ -105,7 +174,7 @@ export class FeatureSink {
   }
 
   /** The summed vector since the last take(), sorted by index; resets. */
-  take(): SparseVector {
+  take(arena?: VectorArena): SparseVector {
     const n = this.nTouched;
     if (this.order.length < n) this.order = new Uint32Array(n * 2);
     const order = this.order.subarray(0, n);
@@ -121,10 +190,15 @@ export class FeatureSink {
       this.touched[k] = s; // reuse: slot of the k-th smallest bucket
       if (this.vals[s] !== 0) kept++;
     }
-    // One buffer for both arrays: one allocation per candidate.
-    const buffer = new ArrayBuffer(kept * 8);
-    const idx = new Uint32Array(buffer, 0, kept);
-    const val = new Float32Array(buffer, kept * 4, kept);
+    let idx: Uint32Array;
+    let val: Float32Array;
+    if (arena) {
+      ({ idx, val } = arena.alloc(kept));
+    } else {
+      const buffer = new ArrayBuffer(kept * 8);
+      idx = new Uint32Array(buffer, 0, kept);
+      val = new Float32Array(buffer, kept * 4, kept);
+    }
     let o = 0;
     for (let k = 0; k < n; k++) {
       const s = this.touched[k];

@@ -7,13 +7,15 @@
  * Hot path: one open-addressing table over bucket indices per sentence
  * (reused), no Map, one buffer per pruned vector.
  */
-import type { SparseVector } from '../core/feature-sink.js';
+import { VectorArena, type SparseVector } from '../core/feature-sink.js';
 
 let slots = new Int32Array(1 << 14).fill(-1);
 let counts = new Int32Array(1 << 14);
 let values = new Float32Array(1 << 14);
 let varies = new Uint8Array(1 << 14);
 let used = new Int32Array(1 << 13);
+/** Slot of every (vector, entry) in order, so later passes need no lookups. */
+let slotAt = new Int32Array(1 << 14);
 
 function slotHash(b: number): number {
   return Math.imul(b, 0x9e3779b1) >>> 7;
@@ -27,9 +29,18 @@ function slotOf(b: number): number {
   return s;
 }
 
-export function pruneConstant(vectors: readonly SparseVector[]): SparseVector[] {
+export function pruneConstant(vectors: readonly SparseVector[], arena?: VectorArena): SparseVector[] {
+  return pruneSentence(vectors, true, arena).vectors;
+}
+
+/**
+ * Prunes (when `prune`) and lists the sentence's varying buckets: those left
+ * in any vector, each once, in no particular order (for the per-shard
+ * count arrays).
+ */
+export function pruneSentence(vectors: readonly SparseVector[], prune: boolean, arena = new VectorArena()): { vectors: SparseVector[]; varying: Uint32Array } {
   const k = vectors.length;
-  if (k === 0) return [];
+  if (k === 0) return { vectors: [], varying: new Uint32Array(0) };
   let total = 0;
   for (const v of vectors) total += v.idx.length;
   if (total * 2 > slots.length) {
@@ -41,10 +52,13 @@ export function pruneConstant(vectors: readonly SparseVector[]): SparseVector[] 
     varies = new Uint8Array(size);
   }
   if (used.length < total) used = new Int32Array(total * 2);
+  if (slotAt.length < total) slotAt = new Int32Array(total * 2);
   let nUsed = 0;
+  let at = 0;
   for (const v of vectors) {
     for (let j = 0; j < v.idx.length; j++) {
       const s = slotOf(v.idx[j]);
+      slotAt[at++] = s;
       if (slots[s] === -1) {
         slots[s] = v.idx[j];
         used[nUsed++] = s;
@@ -57,39 +71,28 @@ export function pruneConstant(vectors: readonly SparseVector[]): SparseVector[] 
       }
     }
   }
+  const constant = (s: number) => prune && counts[s] === k && !varies[s];
+  at = 0;
   const out = vectors.map((v) => {
+    const base = at;
+    at += v.idx.length;
     let keep = 0;
-    for (let j = 0; j < v.idx.length; j++) {
-      const s = slotOf(v.idx[j]);
-      if (counts[s] !== k || varies[s]) keep++;
-    }
+    for (let j = 0; j < v.idx.length; j++) if (!constant(slotAt[base + j])) keep++;
     if (keep === v.idx.length) return v;
-    const buffer = new ArrayBuffer(keep * 8);
-    const idx = new Uint32Array(buffer, 0, keep);
-    const val = new Float32Array(buffer, keep * 4, keep);
+    const { idx, val } = arena.alloc(keep);
     let o = 0;
     for (let j = 0; j < v.idx.length; j++) {
-      const s = slotOf(v.idx[j]);
-      if (counts[s] === k && !varies[s]) continue;
+      if (constant(slotAt[base + j])) continue;
       idx[o] = v.idx[j];
       val[o++] = v.val[j];
     }
     return { idx, val };
   });
+  let nVarying = 0;
+  for (let u = 0; u < nUsed; u++) if (!constant(used[u])) nVarying++;
+  const varying = new Uint32Array(nVarying);
+  for (let u = 0, o = 0; u < nUsed; u++) if (!constant(used[u])) varying[o++] = slots[used[u]];
   // Clear only the slots this sentence used (by slot: clearing by lookup would break probe chains).
   for (let u = 0; u < nUsed; u++) slots[used[u]] = -1;
-  return out;
-}
-
-/**
- * Adds 1 to `counts[i]` for every index i that occurs in the sentence's
- * (pruned) vectors: in how many sentences each bucket varies. Per-shard
- * arrays of these counts add up across shards (the count cut-off's input).
- */
-export function countVarying(vectors: readonly SparseVector[], into: Uint32Array): void {
-  // Marks via the high bit would need a second pass; a small Set per
-  // sentence is cheap next to extraction (vectors are already pruned).
-  const seen = new Set<number>();
-  for (const v of vectors) for (let j = 0; j < v.idx.length; j++) seen.add(v.idx[j]);
-  for (const i of seen) into[i]++;
+  return { vectors: out, varying };
 }

@@ -31,6 +31,11 @@ export interface CandidateView {
 }
 
 export interface ConfiguredTemplate {
+  /**
+   * False when, with these options, node features also read outside the
+   * node's subtree (they are then never shared between candidates).
+   */
+  local?: boolean;
   node?(view: CandidateView, i: number, sink: FeatureSink): void;
   tree?(view: CandidateView, sink: FeatureSink): void;
 }

@@ -38,11 +38,6 @@ export function createSentenceProcessor(pipeline: Pipeline) {
     seed: pipeline.hashing.seed,
     pseudoConstant: pipeline.hashing.pseudoConstant,
   });
-  const varyingOf = (vectors: { idx: Uint32Array }[]): Uint32Array => {
-    const seen = new Set<number>();
-    for (const v of vectors) for (let j = 0; j < v.idx.length; j++) seen.add(v.idx[j]);
-    return Uint32Array.from(seen).sort();
-  };
 
   return (job: SentenceJob): SentenceResult => {
     if (++jobs % 20000 === 0) vocab = createVocabulary();
@@ -50,7 +45,7 @@ export function createSentenceProcessor(pipeline: Pipeline) {
       const gold = parseNormalised(job.gold, vocab, pipeline.parse, 'the gold tree');
       const trees = parse(job.candidates, vocab);
       const { gold: goldCount, counts } = score(gold, trees);
-      const vectors = extractor.sentence(trees.map((tree, rank) => ({ tree, score: job.candidates[rank].score, rank })));
+      const { vectors, varying } = extractor.sentenceWithVarying(trees.map((tree, rank) => ({ tree, score: job.candidates[rank].score, rank })));
       const bytes = encode({
         id: job.id,
         fold: job.fold,
@@ -65,7 +60,7 @@ export function createSentenceProcessor(pipeline: Pipeline) {
           val: vectors[k].val,
         })),
       });
-      return { seq: job.seq, bytes, candidates: trees.length, varying: varyingOf(vectors), empty: trees.length === 0 };
+      return { seq: job.seq, bytes, candidates: trees.length, varying, empty: trees.length === 0 };
     } catch (e) {
       if (e instanceof DataError) return { seq: job.seq, code: e.code, reason: e.reason };
       throw e;

@@ -23,6 +23,7 @@ export const edges: FeatureTemplate = {
     const on = PARTS.map((p) => (options.parts as string[]).includes(p));
     const prefixes = PARTS.map((p) => piece(`edges.v1 ${p}`));
     return {
+      local: !on[6] && !on[7],
       node(v, i, sink) {
         if (v.preterminal[i]) return;
         const t = v.tree;
