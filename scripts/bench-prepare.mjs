@@ -8,7 +8,7 @@
 //   - shard bytes / input JSONL bytes; target <= 0.25
 //   - extrapolated time for 1M sentences x 50 candidates; target <= 10 min
 //
-//   node scripts/bench-prepare.mjs [speedSentences=1000] [small=5000] [large=50000]
+//   node scripts/bench-prepare.mjs [speedSentences=4000] [small=5000] [large=50000]
 import { spawnSync } from 'node:child_process';
 import { createReadStream, createWriteStream, mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -17,7 +17,7 @@ import { createInterface } from 'node:readline';
 import { fileURLToPath } from 'node:url';
 import { perturb, randomTree, rng } from './lib/gen-trees.mjs';
 
-const [SPEED, SMALL, LARGE] = [Number(process.argv[2] ?? 1000), Number(process.argv[3] ?? 5000), Number(process.argv[4] ?? 50000)];
+const [SPEED, SMALL, LARGE] = [Number(process.argv[2] ?? 4000), Number(process.argv[3] ?? 5000), Number(process.argv[4] ?? 50000)];
 const K = 50;
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-bench-prepare-'));
