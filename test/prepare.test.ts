@@ -16,12 +16,14 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { runPrepare, SimulatedStop, type PrepareOptions } from '../src/commands/prepare.js';
 import { makeDemoData, type DemoData } from '../src/demo/make-demo-data.js';
 import { readShard, readManifest } from '../src/io/read-shards.js';
+import { bucketOf, murmur3String } from '../src/core/murmur3.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-prepare-'));
 let data: DemoData;
 let gold: string;
 let pipeline: string;
+let namesPipeline: string;
 let n = 0;
 const out = () => join(dir, `out${n++}`);
 
@@ -34,8 +36,12 @@ beforeAll(async () => {
   const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
   p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 25;
   p.stages.find((s: any) => s.stage === 'extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
+  p.stages.find((s: any) => s.stage === 'hash-features.v1').names = 0;
   pipeline = join(dir, 'pipeline.json');
   writeFileSync(pipeline, JSON.stringify(p));
+  p.stages.find((s: any) => s.stage === 'hash-features.v1').names = 2;
+  namesPipeline = join(dir, 'pipeline-names.json');
+  writeFileSync(namesPipeline, JSON.stringify(p));
 });
 
 const run = (o: Partial<PrepareOptions> = {}) => runPrepare({ gold, nbest: data.dumps, pipeline, out: out(), plan: data.plan, workers: 0, quiet: true, ...o });
@@ -113,6 +119,24 @@ describe('sheaf prepare', () => {
     expect(readFileSync(join(o, 'rejects.jsonl'), 'utf8')).toBe('');
     const done = await runPrepare({ gold, nbest: data.dumps, pipeline, out: o, plan: data.plan, workers: 2, quiet: true });
     expect(done.upToDate).toBe(true);
+  });
+
+  it('keeps canonical names per bucket, the same whatever the worker count, with the collision rate', async () => {
+    const a = await run({ pipeline: namesPipeline, workers: 0 });
+    const b = await run({ pipeline: namesPipeline, workers: 2, batch: 2 });
+    const names = readFileSync(join(a.out, 'names.json'), 'utf8');
+    expect(readFileSync(join(b.out, 'names.json'), 'utf8')).toBe(names);
+    const doc = JSON.parse(names);
+    let checked = 0;
+    for (const [bucket, keys] of Object.entries(doc.names) as [string, string[]][]) {
+      expect(keys.length).toBeLessThanOrEqual(2);
+      expect([...keys].sort()).toEqual(keys);
+      for (const k of keys) expect(String(bucketOf(murmur3String(k, 0), 20))).toBe(bucket);
+      if (++checked > 500) break;
+    }
+    const m = readManifest(a.out) as any;
+    expect(m.names.keys).toBeGreaterThanOrEqual(m.names.buckets);
+    expect(m.names.collisionRate).toBeCloseTo(1 - m.names.buckets / m.names.keys, 12);
   });
 
   it('refuses lists from the wrong fold\'s model when given the plan, naming sentence and folds', async () => {

@@ -23,6 +23,8 @@ import type { SentenceJob, SentenceResult } from '../prepare/sentence-job.js';
 import type { RejectRecord } from '../records.js';
 import type { CommandModule } from './command.js';
 import { TOOL_VERSION } from '../version.js';
+import { NameBook } from '../core/feature-sink.js';
+import { bucketOf, murmur3String } from '../core/murmur3.js';
 
 export const SHARDS_FORMAT = 'sheaf-shards/1';
 export const FOLDS_FORMAT = 'sheaf-folds/1';
@@ -141,7 +143,9 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
 
   // Resume from the journal when the inputs and config are unchanged.
   const header = { format: SHARDS_FORMAT, pipeline: pipeline.digest, inputs, batchSize: null };
-  let state: WriterState | null = usesStdin ? null : readJournal(o.out, header);
+  // A run that keeps names restarts rather than resumes: names come from the sentences it processes.
+  const keepsNames = pipeline.hashing.names > 0;
+  let state: WriterState | null = usesStdin || keepsNames ? null : readJournal(o.out, header);
   if (state) {
     const ok = state.shards.every((s) => existsSync(join(o.out, s.file)) && fileSha256(join(o.out, s.file)) === s.sha256);
     if (!ok) state = null;
@@ -194,6 +198,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   let jobs: SentenceJob[] = [];
   let seq = 0;
   let bytesDone = 0;
+  let namesSummary: NamesSummary | null = null;
 
   const dispatch = () => {
     if (current.items.length === 0) return;
@@ -269,6 +274,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     }
     dispatch();
     while (queue.length > 0) await drainOne();
+    if (keepsNames) namesSummary = writeNames(o.out, await pool.seenKeys(), pipeline.hashing);
   } finally {
     await pool.close();
     gold.close();
@@ -316,6 +322,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
       goldWithoutNbest,
     },
     rejects: { file: REJECTS, count: state.rejected + goldRejected },
+    names: namesSummary,
   };
   writeFileSync(join(o.out, `${MANIFEST}.tmp`), JSON.stringify(manifest, null, 2) + '\n');
   renameSync(join(o.out, `${MANIFEST}.tmp`), join(o.out, MANIFEST));
@@ -325,6 +332,39 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     candidates: state.candidates, noCandidates: state.noCandidates, goldTrees: gold.size, goldRejected, goldWithoutNbest, seconds: (Date.now() - started) / 1000,
   };
   progress.done(`sheaf prepare: read ${read} sentences: wrote ${state.written} (${state.candidates} candidates) in ${state.shards.length} shard(s), rejected ${state.rejected}${resumedFromShard ? `; resumed after shard ${resumedFromShard - 1}` : ''}; ${goldWithoutNbest} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)}s`);
+  return summary;
+}
+
+interface NamesSummary {
+  file: string;
+  perBucket: number;
+  keys: number;
+  buckets: number;
+  collisionRate: number;
+  expectedRate: number;
+}
+
+/**
+ * names.json: for each occupied bucket, the smallest few canonical keys seen
+ * (deterministic whatever the worker count), and the collision rate against
+ * the expected N/(2m).
+ */
+function writeNames(dir: string, keys: string[], hashing: { bits: number; seed: number; names: number }): NamesSummary {
+  const book = new NameBook(hashing.names);
+  book.merge(keys, (k) => bucketOf(murmur3String(k, hashing.seed), hashing.bits));
+  const c = book.collisions();
+  const summary: NamesSummary = {
+    file: 'names.json',
+    perBucket: hashing.names,
+    keys: c.keys,
+    buckets: c.buckets,
+    collisionRate: c.rate,
+    expectedRate: c.keys / (2 * 2 ** hashing.bits),
+  };
+  const byBucket = book.entries().sort((a, b) => a[0] - b[0]);
+  const body = `{"bits": ${hashing.bits}, "seed": ${hashing.seed}, "perBucket": ${hashing.names}, "names": {\n${byBucket.map(([b, ks]) => `${JSON.stringify(String(b))}: ${JSON.stringify(ks)}`).join(',\n')}\n}}\n`;
+  writeFileSync(join(dir, 'names.json.tmp'), body);
+  renameSync(join(dir, 'names.json.tmp'), join(dir, 'names.json'));
   return summary;
 }
 

@@ -46,7 +46,12 @@ export class VectorArena {
   }
 }
 
-/** Keeps the first few canonical keys seen per bucket, and counts distinct keys. */
+/**
+ * Keeps, per bucket, a few canonical keys (the `perBucket` smallest in code
+ * unit order: unlike "the first seen", that does not depend on which worker
+ * saw what, so merged books are deterministic), and counts distinct keys.
+ * Holds every distinct key: meant for inspection runs and samples.
+ */
 export class NameBook {
   readonly byBucket = new Map<number, string[]>();
   private readonly seen = new Set<string>();
@@ -57,8 +62,29 @@ export class NameBook {
     if (this.seen.has(key)) return;
     this.seen.add(key);
     const list = this.byBucket.get(bucket);
-    if (!list) this.byBucket.set(bucket, [key]);
-    else if (list.length < this.perBucket) list.push(key);
+    if (!list) {
+      this.byBucket.set(bucket, [key]);
+      return;
+    }
+    if (list.length === this.perBucket && key >= list[list.length - 1]) return;
+    let k = list.length;
+    while (k > 0 && list[k - 1] > key) k--;
+    list.splice(k, 0, key);
+    if (list.length > this.perBucket) list.pop();
+  }
+
+  /** Every distinct key with its bucket (to merge books from several workers). */
+  entries(): [number, string[]][] {
+    return [...this.byBucket];
+  }
+
+  get keys(): ReadonlySet<string> {
+    return this.seen;
+  }
+
+  /** Adds another book's keys (bucket of each given by `bucketOfKey`). */
+  merge(keys: Iterable<string>, bucketOfKey: (key: string) => number): void {
+    for (const k of keys) this.add(bucketOfKey(k), k);
   }
 
   /** Distinct keys seen, buckets they occupy, and the collision rate 1 − buckets/keys. */

@@ -68,7 +68,7 @@ export function fileSha256(path: string): string {
 /** Removes every file a prepare run writes (a fresh start). */
 export function clearOutput(dir: string): void {
   for (const f of readdirSync(dir)) {
-    if (/^shard-\d{5}\.(counts\.)?msgpack(\.tmp)?$/.test(f) || [JOURNAL, REJECTS, `${REJECTS}.tmp`, MANIFEST, `${MANIFEST}.tmp`].includes(f) || f.startsWith('.gold-spill')) {
+    if (/^shard-\d{5}\.(counts\.)?msgpack(\.tmp)?$/.test(f) || [JOURNAL, REJECTS, `${REJECTS}.tmp`, MANIFEST, `${MANIFEST}.tmp`, 'names.json', 'names.json.tmp'].includes(f) || f.startsWith('.gold-spill')) {
       unlinkSync(join(dir, f));
     }
   }

@@ -8,7 +8,7 @@ import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { Pipeline } from '../pipeline/pipeline.js';
-import { createSentenceProcessor, type SentenceJob, type SentenceResult } from './sentence-job.js';
+import { createSentenceProcessor, type SentenceJob, type SentenceProcessor, type SentenceResult } from './sentence-job.js';
 
 /**
  * The compiled worker next to this module; when this module runs from
@@ -32,7 +32,8 @@ export class SentencePool {
   private readonly workers: Worker[] = [];
   private readonly load: number[] = [];
   private readonly pending = new Map<number, Pending>();
-  private readonly inline: ((job: SentenceJob) => SentenceResult) | null = null;
+  private readonly inline: SentenceProcessor | null = null;
+  private nameWaiters: ((keys: string[]) => void)[] = [];
   private nextBatch = 0;
   private failure: Error | null = null;
 
@@ -44,7 +45,11 @@ export class SentencePool {
     const script = workerScript();
     for (let k = 0; k < count; k++) {
       const w = new Worker(script, { workerData: { pipelineFile } });
-      w.on('message', (msg: { batch: number; results: SentenceResult[] }) => {
+      w.on('message', (msg: { batch: number; results: SentenceResult[] } | { names: string[] }) => {
+        if ('names' in msg) {
+          this.nameWaiters.shift()?.(msg.names);
+          return;
+        }
         this.load[k]--;
         const p = this.pending.get(msg.batch);
         this.pending.delete(msg.batch);
@@ -93,6 +98,20 @@ export class SentencePool {
       this.pending.set(batch, { resolve, reject });
       this.workers[k].postMessage({ batch, jobs });
     });
+  }
+
+  /** Every distinct canonical key the workers saw (call when no batch is in flight). */
+  async seenKeys(): Promise<string[]> {
+    if (this.inline) return this.inline.seenKeys();
+    const all: string[] = [];
+    for (const w of this.workers) {
+      const keys = await new Promise<string[]>((resolve) => {
+        this.nameWaiters.push(resolve);
+        w.postMessage({ names: true });
+      });
+      all.push(...keys);
+    }
+    return all;
   }
 
   async close(): Promise<void> {

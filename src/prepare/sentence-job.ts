@@ -25,7 +25,13 @@ export type SentenceResult =
   | { seq: number; bytes: Uint8Array; candidates: number; varying: Uint32Array; empty: boolean }
   | { seq: number; code: string; reason: string };
 
-export function createSentenceProcessor(pipeline: Pipeline) {
+export interface SentenceProcessor {
+  (job: SentenceJob): SentenceResult;
+  /** Distinct canonical keys seen so far (only when the pipeline keeps names). */
+  seenKeys(): string[];
+}
+
+export function createSentenceProcessor(pipeline: Pipeline): SentenceProcessor {
   // A fresh vocabulary now and then keeps interner memory bounded; ids never reach the output.
   let vocab = createVocabulary();
   let jobs = 0;
@@ -37,9 +43,10 @@ export function createSentenceProcessor(pipeline: Pipeline) {
     bits: pipeline.hashing.bits,
     seed: pipeline.hashing.seed,
     pseudoConstant: pipeline.hashing.pseudoConstant,
+    names: pipeline.hashing.names,
   });
 
-  return (job: SentenceJob): SentenceResult => {
+  const processor = (job: SentenceJob): SentenceResult => {
     if (++jobs % 20000 === 0) vocab = createVocabulary();
     try {
       const gold = parseNormalised(job.gold, vocab, pipeline.parse, 'the gold tree');
@@ -66,4 +73,5 @@ export function createSentenceProcessor(pipeline: Pipeline) {
       throw e;
     }
   };
+  return Object.assign(processor, { seenKeys: () => [...(extractor.names?.keys ?? [])] });
 }

@@ -11,7 +11,11 @@ import { createSentenceProcessor, type SentenceJob } from './sentence-job.js';
 const pipeline = loadPipeline((workerData as { pipelineFile: string }).pipelineFile);
 const process = createSentenceProcessor(pipeline);
 
-parentPort!.on('message', (msg: { batch: number; jobs: SentenceJob[] }) => {
+parentPort!.on('message', (msg: { batch: number; jobs: SentenceJob[] } | { names: true }) => {
+  if ('names' in msg) {
+    parentPort!.postMessage({ names: process.seenKeys() });
+    return;
+  }
   const results = msg.jobs.map(process);
   const transfer: ArrayBuffer[] = [];
   for (const r of results) {
