@@ -23,7 +23,20 @@ const PLANNED: [string, string][] = [
 
 const BUILT: CommandModule[] = [prepareCommand, demoCommand];
 
-export async function main(argv: string[]): Promise<number> {
+/**
+ * yargs takes a lone `-` as the end of an option's values; DESIGN.md wants
+ * `-` to mean stdin/stdout wherever a path goes. So `-` is swapped for a
+ * marker before parsing and back after.
+ */
+const DASH = '\u2063-';
+function restoreDash(value: unknown): unknown {
+  if (value === DASH) return '-';
+  if (Array.isArray(value)) return value.map(restoreDash);
+  return value;
+}
+
+export async function main(rawArgv: string[]): Promise<number> {
+  const argv = rawArgv.map((a) => (a === '-' ? DASH : a));
   let exitCode = 0;
   const debug = argv.includes('--debug');
   const report = (error: unknown): number => {
@@ -55,7 +68,8 @@ export async function main(argv: string[]): Promise<number> {
 
   for (const cmd of BUILT) {
     cli = cli.command(cmd.name, cmd.describe, cmd.builder, async (args) => {
-      exitCode = await cmd.handler(args as Record<string, unknown>);
+      const restored = Object.fromEntries(Object.entries(args).map(([k, v]) => [k, restoreDash(v)]));
+      exitCode = await cmd.handler(restored);
     });
   }
   for (const [name, describe] of PLANNED) {

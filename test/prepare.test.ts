@@ -76,6 +76,12 @@ describe('sheaf prepare', () => {
     const whole = shardHashes((await run({ nbest: [one] })).out);
     const split = shardHashes((await run({ nbest: [a, b] })).out);
     expect(split).toEqual(whole);
+    // The same records as one top-level JSON array, gzipped (streamed by stream-json).
+    const arr = join(dir, 'all.json.gz');
+    writeFileSync(arr, gzipSync(`[\n${lines.join(',\n')}\n]\n`));
+    const s = await run({ nbest: [arr] });
+    expect(s).toMatchObject({ read: 90, written: 90, rejected: 0 });
+    expect(shardHashes(s.out)).toEqual(whole);
   });
 
   it('reads back the same records with an independent MessagePack decoder (@msgpack/msgpack)', async () => {
@@ -150,6 +156,15 @@ describe('sheaf prepare', () => {
     const rej = readFileSync(join(s.out, 'rejects.jsonl'), 'utf8').trim().split('\n').map((l) => JSON.parse(l));
     expect(rej[0]).toMatchObject({ file: f, line: 1, id: bad.id, code: 'leak' });
     expect(rej[0].reason).toContain(`sentence \`${bad.id}\` is in fold 0 of the plan, but this list comes from the base model of fold 1`);
+    // Right fold, but a model the plan does not name for it.
+    const other = JSON.parse(lines[1]);
+    other.source.fingerprint = 'sha256:some-other-model';
+    writeFileSync(f, [lines[0], JSON.stringify(other)].join('\n') + '\n');
+    const t = await run({ nbest: [f] });
+    const rej2 = readFileSync(join(t.out, 'rejects.jsonl'), 'utf8').trim().split('\n').map((l) => JSON.parse(l));
+    expect(rej2).toHaveLength(1);
+    expect(rej2[0]).toMatchObject({ line: 2, id: other.id, code: 'leak' });
+    expect(rej2[0].reason).toContain('sha256:some-other-model');
   });
 
   it('rejects each bad record with file, line and reason, keeps empty lists, and reconciles', async () => {
