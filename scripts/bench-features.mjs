@@ -13,6 +13,7 @@ import { candidateView } from '../dist/features/candidate-view.js';
 import { FeatureExtractor } from '../dist/features/extract-features.js';
 import { loadPipeline } from '../dist/io/load-pipeline.js';
 import { perturb, randomTree, rng } from './lib/gen-trees.mjs';
+import { best } from './lib/timing.mjs';
 
 const S = Number(process.argv[2] ?? 400);
 const K = Number(process.argv[3] ?? 50);
@@ -28,15 +29,6 @@ for (let s = 0; s < S; s++) {
 const pipeline = loadPipeline(fileURLToPath(new URL('../pipelines/default.json', import.meta.url)));
 const N = S * K;
 
-function best(fn, reps = 3) {
-  let min = Infinity;
-  for (let r = 0; r < reps; r++) {
-    const t0 = process.hrtime.bigint();
-    fn();
-    min = Math.min(min, Number(process.hrtime.bigint() - t0) / 1e9);
-  }
-  return min;
-}
 
 let sink = 0;
 const tJson = best(() => { for (const c of sentences) for (const l of c) sink += JSON.parse(l).score; });

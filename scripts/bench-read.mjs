@@ -14,6 +14,8 @@ import { parseTree } from '../dist/core/read-brackets.js';
 import { TreeBuilder } from '../dist/core/tree.js';
 import { readTreebank } from '../dist/io/read-treebank.js';
 import { randomTree, rng } from './lib/gen-trees.mjs';
+import { best as bestOf, bestAsync } from './lib/timing.mjs';
+const best = (fn) => bestOf(fn, 5);
 
 const N = Number(process.argv[2] ?? 50000);
 const WORDS = Number(process.argv[3] ?? 25);
@@ -24,15 +26,6 @@ const lines = trees.map((t) => JSON.stringify({ tree: t }));
 const nested = trees.map((t) => t.replace(/\(([^\s()]+)/g, '["$1",').replace(/ ([^\s()]+)\)/g, ' "$1"]').replace(/\)/g, ']').replace(/\] \[/g, '], [').replace(/, \[/g, ',['));
 JSON.parse(nested[0]);
 
-function best(fn, reps = 5) {
-  let min = Infinity;
-  for (let r = 0; r < reps; r++) {
-    const t0 = process.hrtime.bigint();
-    fn();
-    min = Math.min(min, Number(process.hrtime.bigint() - t0) / 1e9);
-  }
-  return min;
-}
 
 let sink = 0;
 const tJson = best(() => { for (const l of lines) sink += JSON.parse(l).tree.length; });
@@ -46,15 +39,6 @@ const mrg = join(dir, 'trees.mrg');
 const jsonl = join(dir, 'trees.jsonl');
 writeFileSync(mrg, trees.join('\n') + '\n');
 writeFileSync(jsonl, lines.join('\n') + '\n');
-async function bestAsync(fn, reps = 3) {
-  let min = Infinity;
-  for (let r = 0; r < reps; r++) {
-    const t0 = process.hrtime.bigint();
-    await fn();
-    min = Math.min(min, Number(process.hrtime.bigint() - t0) / 1e9);
-  }
-  return min;
-}
 const tFileJson = await bestAsync(async () => {
   const rl = createInterface({ input: createReadStream(jsonl), crlfDelay: Infinity });
   for await (const l of rl) sink += JSON.parse(l).tree.length;
