@@ -13,7 +13,7 @@ import { availableParallelism } from 'node:os';
 import { join, resolve } from 'node:path';
 import type { Argv } from 'yargs';
 import { DataError, UsageError } from '../core/errors.js';
-import { canonicalJson, loadPipeline } from '../io/load-pipeline.js';
+import { loadPipeline } from '../io/load-pipeline.js';
 import { GoldIndex } from '../io/gold-index.js';
 import { readNbest } from '../io/read-nbest.js';
 import { createProgress } from '../io/progress.js';
@@ -142,7 +142,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   }
 
   // Resume from the journal when the inputs and config are unchanged.
-  const header = { format: SHARDS_FORMAT, pipeline: pipeline.digest, inputs, batchSize: null };
+  const header = { format: SHARDS_FORMAT, pipeline: pipeline.digest, inputs };
   // A run that keeps names restarts rather than resumes: names come from the sentences it processes.
   const keepsNames = pipeline.hashing.names > 0;
   let state: WriterState | null = usesStdin || keepsNames ? null : readJournal(o.out, header);
