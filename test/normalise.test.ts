@@ -58,3 +58,15 @@ describe('normaliseTree', () => {
     expect(Array.from(t.stop)).toEqual([3, 2, 1, 1, 2, 2, 3, 3, 3]);
   });
 });
+
+describe('tree views: parent labels, POS tags, productions as text', async () => {
+  const { parentLabel, formatProduction, productionsOf } = await import('../src/core/tree-views.js');
+  const { tagsOf } = await import('../src/core/tree.js');
+  it('names each node\'s parent, each word\'s tag, and prints rules with quoted words', () => {
+    const vocab = createVocabulary();
+    const t = parseTree('(S (NP (NN rope)) (VP (VBD froze)))', vocab);
+    expect(Array.from({ length: t.size }, (_, i) => parentLabel(t, i))).toEqual(['', 'S', 'NP', 'NN', 'S', 'VP', 'VBD']);
+    expect(tagsOf(t)).toEqual(['NN', 'VBD']);
+    expect(productionsOf(t).map(formatProduction)).toEqual(['S -> NP VP', 'NP -> NN', 'NN -> "rope"', 'VP -> VBD', 'VBD -> "froze"']);
+  });
+});

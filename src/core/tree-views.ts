@@ -59,11 +59,5 @@ export function parentLabel(tree: Tree, node: number): string {
   return p < 0 ? '' : tree.vocab.labels.name(tree.sym[p]);
 }
 
-/** Number of constituent children of each constituent (0 for words). */
-export function childCount(tree: Tree, node: number): number {
-  let k = 0;
-  for (let c = node + 1; c < tree.end[node]; c = tree.end[c]) k++;
-  return k;
-}
 
 export { isPreterminal };

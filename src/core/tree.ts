@@ -34,17 +34,7 @@ export interface Tree {
   readonly wordNodes: Int32Array;
 }
 
-/** Label of a constituent or spelling of a word. */
-export function symbolOf(tree: Tree, node: number): string {
-  return tree.isWord[node] ? tree.vocab.words.name(tree.sym[node]) : tree.vocab.labels.name(tree.sym[node]);
-}
 
-/** Child node indices of `node`, left to right. */
-export function childrenOf(tree: Tree, node: number): number[] {
-  const out: number[] = [];
-  for (let c = node + 1; c < tree.end[node]; c = tree.end[c]) out.push(c);
-  return out;
-}
 
 /** True for a constituent whose children are all words (a POS node). */
 export function isPreterminal(tree: Tree, node: number): boolean {
@@ -55,9 +45,6 @@ export function isPreterminal(tree: Tree, node: number): boolean {
   return true;
 }
 
-export function wordCount(tree: Tree): number {
-  return tree.wordNodes.length;
-}
 
 /** The sentence's words as strings. */
 export function yieldOf(tree: Tree): string[] {

@@ -66,3 +66,6 @@ export function checkOptions(given: Record<string, unknown>, schema: OptionSchem
   }
   return out;
 }
+
+/** The punctuation option shared by templates that skip punctuation (same default as scoring). */
+export const PUNCTUATION_OPTION: OptionSpec = { type: 'strings', default: [',', ':', '``', "''", '.'], doc: 'POS labels treated as punctuation' };

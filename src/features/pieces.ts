@@ -56,13 +56,3 @@ export function tagBytes(v: CandidateView, w: number): Uint8Array {
 export function symbolBytes(v: CandidateView, c: number): Uint8Array {
   return v.tree.isWord[c] ? wordBytes(v, c) : labelBytes(v, c);
 }
-
-/** Label ids for a list of label names in this candidate's vocabulary. */
-export function labelIdSet(v: CandidateView, names: readonly string[], cache: WeakMap<object, Set<number>>): Set<number> {
-  let s = cache.get(v.tree.vocab);
-  if (!s) {
-    s = new Set(names.map((n) => v.tree.vocab.labels.intern(n)));
-    cache.set(v.tree.vocab, s);
-  }
-  return s;
-}

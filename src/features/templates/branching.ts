@@ -8,6 +8,7 @@
  */
 import { piece } from '../../core/feature-sink.js';
 import type { FeatureTemplate } from '../template.js';
+import { PUNCTUATION_OPTION } from '../options.js';
 
 const MEASURES = ['right-spine', 'depth-max', 'depth-mean', 'nodes-per-word'] as const;
 
@@ -17,7 +18,7 @@ export const branching: FeatureTemplate = {
   example: 'branching.v1 right-spine',
   options: {
     measures: { type: 'strings', default: MEASURES, choices: MEASURES, doc: 'which measures to fire' },
-    punctuation: { type: 'strings', default: [',', ':', '``', "''", '.'], doc: 'preterminals skipped by right-spine' },
+    punctuation: PUNCTUATION_OPTION,
   },
   configure(options) {
     const on = MEASURES.map((m) => (options.measures as string[]).includes(m));

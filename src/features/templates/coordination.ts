@@ -11,6 +11,7 @@
  */
 import { piece } from '../../core/feature-sink.js';
 import type { CandidateView, FeatureTemplate } from '../template.js';
+import { PUNCTUATION_OPTION } from '../options.js';
 import { DIFF, SAME, diffBucket, labelBytes } from '../pieces.js';
 
 function sameChildLabels(v: CandidateView, a: number, b: number): boolean {
@@ -31,7 +32,7 @@ export const coordination: FeatureTemplate = {
   example: 'coordination.v1 kids NP same',
   options: {
     coordinators: { type: 'strings', default: ['CC', 'CONJP'], doc: 'labels of coordinators' },
-    punctuation: { type: 'strings', default: [',', ':', '``', "''", '.'], doc: 'labels that are neither conjuncts nor coordinators' },
+    punctuation: PUNCTUATION_OPTION,
   },
   configure(options) {
     const coord = new Set(options.coordinators as string[]);

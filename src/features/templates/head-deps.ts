@@ -10,6 +10,7 @@
  */
 import { piece } from '../../core/feature-sink.js';
 import type { FeatureTemplate } from '../template.js';
+import { PUNCTUATION_OPTION } from '../options.js';
 import { LEFT, RIGHT, labelBytes, tagBytes, wordBytes } from '../pieces.js';
 
 const KINDS = ['ww', 'tt', 'wt', 'tw'] as const;
@@ -20,7 +21,7 @@ export const headDeps: FeatureTemplate = {
   example: 'head-deps.v1 ww VP VBD NP R carried crates',
   options: {
     kinds: { type: 'strings', default: KINDS, choices: KINDS, doc: 'ww: words; tt: tags; wt / tw: head word or tag with dependent tag or word' },
-    punctuation: { type: 'strings', default: [',', ':', '``', "''", '.'], doc: 'dependents with these labels are skipped' },
+    punctuation: PUNCTUATION_OPTION,
   },
   configure(options) {
     const on = KINDS.map((k) => (options.kinds as string[]).includes(k));
