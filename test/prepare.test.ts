@@ -202,6 +202,35 @@ describe('sheaf prepare', () => {
     expect(flagged).toEqual([[rec(8).id, 'no-candidates', 0]]);
   });
 
+  it('writes per-shard count arrays whose sum over shards is the per-bucket sentence count, also for a 2^26 hash space', async () => {
+    for (const bits of [20, 26]) {
+      const p = JSON.parse(readFileSync(pipeline, 'utf8'));
+      p.stages.find((x: any) => x.stage === 'hash-features.v1').bits = bits;
+      const file = join(dir, `pipeline-bits-${bits}.json`);
+      writeFileSync(file, JSON.stringify(p));
+      const s = await run({ pipeline: file });
+      const m = readManifest(s.out);
+      const fromCounts = new Map<number, number>();
+      for (const sh of m.shards) {
+        const [c] = [...decodeMulti(readFileSync(join(s.out, sh.counts)))] as any[];
+        expect(c.bits).toBe(bits);
+        const idx = new Uint32Array(new Uint8Array(c.idx).buffer);
+        const cnt = new Uint32Array(new Uint8Array(c.count).buffer);
+        for (let k = 1; k < idx.length; k++) expect(idx[k]).toBeGreaterThan(idx[k - 1]);
+        idx.forEach((i, k) => fromCounts.set(i, (fromCounts.get(i) ?? 0) + cnt[k]));
+      }
+      const fromShards = new Map<number, number>();
+      for (const sh of m.shards) {
+        for await (const r of readShard(join(s.out, sh.file))) {
+          const seen = new Set<number>();
+          for (const c of r.cands) for (const i of c.idx) seen.add(i);
+          for (const i of seen) fromShards.set(i, (fromShards.get(i) ?? 0) + 1);
+        }
+      }
+      expect([...fromCounts].sort((a, b) => a[0] - b[0])).toEqual([...fromShards].sort((a, b) => a[0] - b[0]));
+    }
+  });
+
   it('stops at the first bad record with --strict', async () => {
     const f = join(dir, 'strict.jsonl');
     writeFileSync(f, '{"id": "1", "candidates": [\n');

@@ -79,7 +79,11 @@ export class MsgpackWriter {
   }
 
   str(s: string): void {
-    const b = encoder.encode(s);
+    this.strBytes(encoder.encode(s));
+  }
+
+  /** A string given as its UTF-8 bytes (map keys are encoded once, not per record). */
+  strBytes(b: Uint8Array): void {
     const n = b.length;
     this.ensure(n + 5);
     if (n < 32) this.u8(0xa0 | n);
@@ -132,34 +136,38 @@ export class MsgpackWriter {
   }
 }
 
+const KEY = Object.fromEntries(
+  ['id', 'fold', 'gold', 'flag', 'cands', 'score', 'rank', 'matched', 'test', 'idx', 'val'].map((k) => [k, encoder.encode(k)]),
+);
+
 /** Appends one sentence map to `w`. */
 export function encodeSentence(w: MsgpackWriter, s: SentenceRecord): void {
   w.mapHeader(5);
-  w.str('id');
+  w.strBytes(KEY.id);
   w.str(s.id);
-  w.str('fold');
+  w.strBytes(KEY.fold);
   if (s.fold === null) w.nil();
   else w.int(s.fold);
-  w.str('gold');
+  w.strBytes(KEY.gold);
   w.int(s.gold);
-  w.str('flag');
+  w.strBytes(KEY.flag);
   if (s.flag === null) w.nil();
   else w.str(s.flag);
-  w.str('cands');
+  w.strBytes(KEY.cands);
   w.arrayHeader(s.cands.length);
   for (const c of s.cands) {
     w.mapHeader(6);
-    w.str('score');
+    w.strBytes(KEY.score);
     w.float64(c.score);
-    w.str('rank');
+    w.strBytes(KEY.rank);
     w.int(c.rank);
-    w.str('matched');
+    w.strBytes(KEY.matched);
     w.int(c.matched);
-    w.str('test');
+    w.strBytes(KEY.test);
     w.int(c.test);
-    w.str('idx');
+    w.strBytes(KEY.idx);
     w.bin(c.idx);
-    w.str('val');
+    w.strBytes(KEY.val);
     w.bin(c.val);
   }
 }

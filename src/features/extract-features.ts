@@ -36,8 +36,7 @@ export interface CandidateInput {
 export class FeatureExtractor {
   readonly sink: FeatureSink;
   readonly names: NameBook | null;
-  /** In how many sentences each bucket varied (after pruning), counted by sentence(). */
-  readonly varying: Uint32Array;
+  private varyingCounts: Uint32Array | null = null;
   private readonly nodeTemplates: ConfiguredTemplate[];
   private readonly localTemplates: ConfiguredTemplate[];
   private readonly contextTemplates: ConfiguredTemplate[];
@@ -52,7 +51,6 @@ export class FeatureExtractor {
     this.contextTemplates = this.nodeTemplates.filter((t) => t.local === false);
     this.treeTemplates = options.templates.filter((t) => t.tree);
     this.prune = options.pseudoConstant ?? true;
-    this.varying = new Uint32Array(2 ** options.bits);
   }
 
   /** The features of one candidate, before pruning. */
@@ -67,10 +65,20 @@ export class FeatureExtractor {
     return sink.take();
   }
 
+  /**
+   * In how many sentences each bucket varied (after pruning), counted by
+   * sentence(). Allocated on first use: prepare counts per shard instead.
+   */
+  get varying(): Uint32Array {
+    this.varyingCounts ??= new Uint32Array(2 ** this.options.bits);
+    return this.varyingCounts;
+  }
+
   /** The features of every candidate of one sentence, pruned; counts varying buckets. */
   sentence(candidates: readonly CandidateInput[]): SparseVector[] {
     const { vectors, varying } = this.sentenceWithVarying(candidates);
-    for (let k = 0; k < varying.length; k++) this.varying[varying[k]]++;
+    const counts = this.varying;
+    for (let k = 0; k < varying.length; k++) counts[varying[k]]++;
     return vectors;
   }
 

@@ -80,7 +80,7 @@ export class ShardWriter {
   private shardBytes = 0;
   private shardSentences = 0;
   private shardCandidates = 0;
-  private varying: Uint32Array;
+  private readonly varying: BucketCounts;
   private pending: Uint8Array[] = [];
   private pendingBytes = 0;
   private readonly rejectsFd: number;
@@ -91,7 +91,7 @@ export class ShardWriter {
     readonly bits: number,
     readonly state: WriterState,
   ) {
-    this.varying = new Uint32Array(2 ** bits);
+    this.varying = new BucketCounts(bits);
     const rejectsTmp = join(dir, `${REJECTS}.tmp`);
     if (!existsSync(rejectsTmp)) closeSync(openSync(rejectsTmp, 'w'));
     truncateSync(rejectsTmp, state.rejectsBytes);
@@ -107,7 +107,7 @@ export class ShardWriter {
     this.shardBytes += bytes.length;
     this.shardSentences++;
     this.shardCandidates += candidates;
-    for (let k = 0; k < varying.length; k++) this.varying[varying[k]]++;
+    this.varying.add(varying);
     const s = this.state;
     s.written++;
     s.candidates += candidates;
@@ -154,7 +154,7 @@ export class ShardWriter {
     this.shardBytes = 0;
     this.shardSentences = 0;
     this.shardCandidates = 0;
-    this.varying.fill(0);
+    this.varying.clear();
   }
 
   private flush(): void {
@@ -172,16 +172,7 @@ export class ShardWriter {
     this.fd = -1;
     const k = this.state.shards.length;
     // Per-shard count array, sparse: buckets with a non-zero count.
-    let nz = 0;
-    for (let i = 0; i < this.varying.length; i++) if (this.varying[i]) nz++;
-    const idx = new Uint32Array(nz);
-    const cnt = new Uint32Array(nz);
-    for (let i = 0, o = 0; i < this.varying.length; i++) {
-      if (this.varying[i]) {
-        idx[o] = i;
-        cnt[o++] = this.varying[i];
-      }
-    }
+    const { idx, cnt } = this.varying.nonZero();
     const w = new MsgpackWriter();
     w.mapHeader(3);
     w.str('bits');
@@ -215,6 +206,50 @@ export class ShardWriter {
     this.close();
     closeSync(this.rejectsFd);
     renameSync(join(this.dir, `${REJECTS}.tmp`), join(this.dir, REJECTS));
+  }
+}
+
+/**
+ * In how many sentences of the shard each bucket varies: a dense array up to
+ * 2^24 buckets (fast, 64 MB at most), a Map beyond (hash spaces up to 2^31).
+ */
+class BucketCounts {
+  private readonly dense: Uint32Array | null;
+  private readonly sparse = new Map<number, number>();
+
+  constructor(bits: number) {
+    this.dense = bits <= 24 ? new Uint32Array(2 ** bits) : null;
+  }
+
+  add(buckets: Uint32Array): void {
+    const d = this.dense;
+    if (d) for (let k = 0; k < buckets.length; k++) d[buckets[k]]++;
+    else for (let k = 0; k < buckets.length; k++) this.sparse.set(buckets[k], (this.sparse.get(buckets[k]) ?? 0) + 1);
+  }
+
+  clear(): void {
+    this.dense?.fill(0);
+    this.sparse.clear();
+  }
+
+  /** Buckets with a non-zero count, ascending, and their counts. */
+  nonZero(): { idx: Uint32Array; cnt: Uint32Array } {
+    const d = this.dense;
+    if (!d) {
+      const idx = Uint32Array.from(this.sparse.keys()).sort();
+      return { idx, cnt: Uint32Array.from(idx, (i) => this.sparse.get(i)!) };
+    }
+    let nz = 0;
+    for (let i = 0; i < d.length; i++) if (d[i]) nz++;
+    const idx = new Uint32Array(nz);
+    const cnt = new Uint32Array(nz);
+    for (let i = 0, o = 0; i < d.length; i++) {
+      if (d[i]) {
+        idx[o] = i;
+        cnt[o++] = d[i];
+      }
+    }
+    return { idx, cnt };
   }
 }
 
