@@ -25,7 +25,7 @@ const pipeline = join(root, 'pipelines/default.json');
 
 async function generate(name, sentences, seed) {
   const rand = rng(seed);
-  const gold = join(dir, `${name}.mrg`);
+  const gold = join(dir, `${name}.trees`);
   const dump = join(dir, `${name}.jsonl`);
   const g = createWriteStream(gold);
   const d = createWriteStream(dump);

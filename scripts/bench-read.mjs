@@ -35,16 +35,16 @@ const builder = new TreeBuilder(vocab);
 const tParse = best(() => { for (const t of trees) sink += parseTree(t, vocab, { builder }).size; });
 
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-bench-'));
-const mrg = join(dir, 'trees.mrg');
+const treesFile = join(dir, 'bench.trees');
 const jsonl = join(dir, 'trees.jsonl');
-writeFileSync(mrg, trees.join('\n') + '\n');
+writeFileSync(treesFile, trees.join('\n') + '\n');
 writeFileSync(jsonl, lines.join('\n') + '\n');
 const tFileJson = await bestAsync(async () => {
   const rl = createInterface({ input: createReadStream(jsonl), crlfDelay: Infinity });
   for await (const l of rl) sink += JSON.parse(l).tree.length;
 });
 const tFileRead = await bestAsync(async () => {
-  for await (const r of readTreebank(mrg, { vocab })) sink += r.tree.size;
+  for await (const r of readTreebank(treesFile, { vocab })) sink += r.tree.size;
 });
 rmSync(dir, { recursive: true });
 

@@ -1,44 +1,48 @@
 #!/usr/bin/python3
 """Outside check run by CI: an independent MessagePack decoder (Debian's
-python3-msgpack, with numpy.frombuffer) reads every shard of a shard
-directory and must agree with sheaf's own reading, given as JSON Lines on
-stdin (one sentence per line: id, fold, gold, flag, and per candidate score,
-rank, matched, test, idx, val).
+python3-msgpack, with numpy and the standard library's gzip) reads every
+shard of a shard directory through the README's own snippet (extracted from
+README.md and run as written) and must agree with `sheaf inspect DIR --jsonl`,
+given on stdin: same sentences in the same order, same fields, same absolute
+feature vectors.
 
-  node scripts/dump-shards.mjs DIR | /usr/bin/python3 scripts/check-shards-python.py DIR
+  node bin/sheaf.js inspect DIR --jsonl | /usr/bin/python3 scripts/check-shards-python.py DIR
 """
 import json
+import re
 import sys
+from pathlib import Path
 
 import msgpack
 import numpy as np
 
+MARKER = "<!-- python-shard-reader: checked in CI by scripts/check-shards-python.py -->"
 
-def read_shards(directory):
-    # The README's "read a shard in Python" example, verbatim in spirit.
-    manifest = json.load(open(f"{directory}/manifest.json"))
-    for shard in manifest["shards"]:
-        with open(f"{directory}/{shard['file']}", "rb") as f:
-            for sent in msgpack.Unpacker(f, raw=False):
-                for c in sent["cands"]:
-                    c["idx"] = np.frombuffer(c["idx"], dtype="<u4")
-                    c["val"] = np.frombuffer(c["val"], dtype="<f4")
-                yield sent
+
+def readme_snippet():
+    text = (Path(__file__).resolve().parent.parent / "README.md").read_text()
+    after = text.split(MARKER, 1)[1]
+    code = re.search(r"```python\n(.*?)```", after, re.S).group(1)
+    lines = [l for l in code.splitlines() if l.strip()]
+    assert len(lines) <= 15, f"the README snippet has {len(lines)} lines; it promises at most 15"
+    return code
 
 
 def main():
     directory = sys.argv[1]
+    scope = {}
+    exec(readme_snippet(), scope)
     ours = (json.loads(line) for line in sys.stdin)
     n = 0
-    for py, js in zip(read_shards(directory), ours, strict=True):
-        assert [py["id"], py["fold"], py["gold"], py["flag"]] == [js["id"], js["fold"], js["gold"], js["flag"]], (py["id"], js["id"])
-        assert len(py["cands"]) == len(js["cands"])
+    for py, js in zip(scope["sentences"](directory), ours, strict=True):
+        for key in ["id", "fold", "gold", "len", "flag"]:
+            assert py[key] == js[key], (key, py[key], js[key])
+        assert len(py["cands"]) == len(js["cands"]), py["id"]
         for a, b in zip(py["cands"], js["cands"]):
-            assert [a["score"], a["rank"], a["matched"], a["test"]] == [b["score"], b["rank"], b["matched"], b["test"]]
-            assert a["idx"].tolist() == b["idx"]
-            assert np.array_equal(a["val"], np.array(b["val"], dtype="<f4"))
+            assert [a["rank"], a["score"], a["matched"], a["test"]] == [b["rank"], b["score"], b["matched"], b["test"]], py["id"]
+            assert [list(f) for f in a["features"]] == b["features"], (py["id"], a["rank"])
         n += 1
-    print(f"python msgpack check: {n} sentences agree (msgpack {'.'.join(map(str, msgpack.version))}, numpy {np.__version__})")
+    print(f"python check: {n} sentences agree (README snippet; msgpack {'.'.join(map(str, msgpack.version))}, numpy {np.__version__})")
 
 
 if __name__ == "__main__":

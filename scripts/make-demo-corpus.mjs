@@ -142,7 +142,7 @@ function layout(tree) {
 const trees = [];
 for (let i = 0; i < SENTENCES; i++) trees.push(layout(sentence()));
 mkdirSync('demo-corpus', { recursive: true });
-writeFileSync('demo-corpus/huts.mrg', trees.join('\n') + '\n');
+writeFileSync('demo-corpus/huts.trees', trees.join('\n') + '\n');
 
 const classes = [];
 for (const w of [...NOUNS_SG, ...NOUNS_PL]) {
@@ -161,4 +161,4 @@ for (const w of SING) classes.push([w, 'person']);
 writeFileSync('demo-corpus/lexicon.tsv',
   '# word\tclass ...   (invented demo lexicon: hut supplies, gear, places, people)\n' +
   classes.map((r) => r.join('\t')).join('\n') + '\n');
-console.error(`wrote demo-corpus/huts.mrg (${trees.length} trees) and demo-corpus/lexicon.tsv (${classes.length} words)`);
+console.error(`wrote demo-corpus/huts.trees (${trees.length} trees) and demo-corpus/lexicon.tsv (${classes.length} words)`);

@@ -7,6 +7,7 @@
 import yargs, { type Argv } from 'yargs';
 import { DataError, UsageError } from './core/errors.js';
 import { demoCommand } from './commands/demo.js';
+import { inspectCommand } from './commands/inspect.js';
 import { prepareCommand } from './commands/prepare.js';
 import type { CommandModule } from './commands/command.js';
 
@@ -17,11 +18,10 @@ const PLANNED: [string, string][] = [
   ['train', 'train a re-ranker on a shard directory'],
   ['eval', 'base, oracle and re-ranked F1 of a model on a shard directory'],
   ['rerank', 'pick the best tree of each n-best list with a model'],
-  ['inspect', 'show records, features and top weights of shards or a model'],
   ['export', 'write shards as sparse ranking text for other trainers'],
 ];
 
-const BUILT: CommandModule[] = [prepareCommand, demoCommand];
+const BUILT: CommandModule[] = [prepareCommand, inspectCommand, demoCommand];
 
 /**
  * yargs takes a lone `-` as the end of an option's values; DESIGN.md wants

@@ -1,10 +1,21 @@
 /**
  * The records that flow between stages, declared once (types only; no code).
- * DEVELOPERS.md lists them in a table; keep the two in step.
+ * DEVELOPERS.md lists them in a table; keep the two in step. Formats that
+ * sheaf writes to disk (shard records, count files, the manifest, the fold
+ * plan) are declared with their encoders in src/formats/.
  */
+import type { DataErrorCode } from './core/errors.js';
+import type { StoredVector } from './core/sparse-vector.js';
 import type { Tree } from './core/tree.js';
 
 export type { Tree } from './core/tree.js';
+export type { SparseVector, StoredVector, Values } from './core/sparse-vector.js';
+
+/** Which base model produced a list: a name and a digest of what made it. */
+export interface ModelIdentity {
+  parser: string;
+  fingerprint: string;
+}
 
 /** A gold tree as the treebank reader yields it (io/read-treebank.ts). */
 export interface TreeRecord {
@@ -25,12 +36,12 @@ export interface CandidateText {
   score: number;
 }
 
-/** One sentence of an n-best dump, validated (io/read-nbest.ts). */
+/** One sentence of an n-best dump, checked (stages/read-nbest.ts). */
 export interface NbestRecord {
   id: string;
   /** The fold whose held-out part this list parses, or null. */
   fold: number | null;
-  source: { parser: string; fingerprint: string } | null;
+  source: ModelIdentity | null;
   candidates: CandidateText[];
   file: string;
   /** 1-based line (JSON Lines), or 0 inside a JSON array. */
@@ -39,11 +50,72 @@ export interface NbestRecord {
   index: number;
 }
 
-/** What a reader yields for a record it refuses: it goes to rejects.jsonl. */
+export type RejectCode = DataErrorCode;
+
+/** A refused input record: one line of rejects.jsonl. */
 export interface RejectRecord {
   file: string;
+  /** 1-based line, where known. */
   line: number | null;
+  /** 1-based column, where known. */
+  column: number | null;
   id: string | null;
+  code: RejectCode;
   reason: string;
-  code: string;
+}
+
+/** Work for the per-sentence chain (prepare/sentence-chain.ts), sent to a worker. */
+export interface SentenceJob {
+  /** Input position (0-based, over all dumps in order). */
+  pos: number;
+  id: string;
+  fold: number | null;
+  /** The gold tree's text (one bracketed line). */
+  gold: string;
+  candidates: CandidateText[];
+}
+
+/** What the chain gives back: the encoded record, or why the sentence is refused. */
+export type SentenceResult =
+  | {
+      pos: number;
+      /** The encoded shard record (transferred, not copied). */
+      bytes: Uint8Array;
+      /** Byte length of the record before compression. */
+      rawBytes: number;
+      candidates: number;
+      /** Buckets that vary in the sentence (for the shard's count file). */
+      varying: Uint32Array;
+      /** Per template: distinct buckets fired, of which vary (2 entries each). */
+      templateCounts: Uint32Array;
+    }
+  | { pos: number; code: RejectCode; reason: string };
+
+/** One candidate of a shard sentence. */
+export interface ShardCandidate {
+  /** The base model's log score. */
+  score: number;
+  /** 0-based rank in the base model's list. */
+  rank: number;
+  /** PARSEVAL counts: brackets matched and brackets in the candidate. */
+  matched: number;
+  test: number;
+  /** The candidate's vector minus the reference's. */
+  diff: StoredVector;
+}
+
+/** One sentence as a shard stores it (formats/shard-record.ts). */
+export interface ShardSentence {
+  id: string;
+  /** Input position (0-based, over all dumps in order). */
+  pos: number;
+  fold: number | null;
+  /** Brackets in the gold tree. */
+  gold: number;
+  /** Words, punctuation included. */
+  len: number;
+  flag: 'no-candidates' | null;
+  /** The reference candidate's vector at the stored buckets; null without candidates. */
+  ref: StoredVector | null;
+  cands: ShardCandidate[];
 }

@@ -35,21 +35,21 @@ describe('sheaf CLI', () => {
     const { tmpdir } = await import('node:os');
     const { join } = await import('node:path');
     const d = mkdtempSync(join(tmpdir(), 'sheaf-cli-'));
-    writeFileSync(join(d, 'gold.mrg'), '(S (NP (NN fog)) (VP (VBD lifted)))\n(S (NP (NN rope)) (VP (VBD froze)))\n');
+    writeFileSync(join(d, 'gold.trees'), '(S (NP (NN fog)) (VP (VBD lifted)))\n(S (NP (NN rope)) (VP (VBD froze)))\n');
     const dump = [
       { id: '1', candidates: [{ tree: '(S (NP (NN fog)) (VP (VBD lifted)))', score: -3 }, { tree: '(S (VP (NN fog) (VBD lifted)))', score: -4 }] },
       { id: '2', candidates: [{ tree: '(S (NP (NN rope)) (VP (VBD froze)))', score: -2 }] },
       { id: '3', candidates: [] },
     ].map((r) => JSON.stringify(r)).join('\n');
     const pipeline = fileURLToPath(new URL('../pipelines/default.json', import.meta.url));
-    const r = spawnSync(process.execPath, [BIN, 'prepare', '--gold', join(d, 'gold.mrg'), '--nbest', '-', '--pipeline', pipeline, '-o', join(d, 'out'), '--json', '--quiet', '--workers', '1'], { input: dump, encoding: 'utf8' });
+    const r = spawnSync(process.execPath, [BIN, 'prepare', '--gold', join(d, 'gold.trees'), '--nbest', '-', '--pipeline', pipeline, '-o', join(d, 'out'), '--json', '--quiet', '--workers', '1'], { input: dump, encoding: 'utf8' });
     expect(r.stderr).toBe('');
     expect(r.status).toBe(0);
     expect(JSON.parse(r.stdout)).toMatchObject({ read: 3, written: 2, rejected: 1, candidates: 3 });
   });
 
   it('refuses a prepare without its required options, naming them', () => {
-    const r = sheaf('prepare', '--gold', 'x.mrg');
+    const r = sheaf('prepare', '--gold', 'x.trees');
     expect(r.status).toBe(1);
     expect(r.stderr).toMatch(/Missing required arguments?: .*nbest/);
   });

@@ -10,6 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { UsageError } from '../src/core/errors.js';
 import { loadPipeline } from '../src/io/load-pipeline.js';
 import { TEMPLATES } from '../src/features/registry.js';
+import { rebuildPipeline } from '../src/pipeline/pipeline.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-pipe-'));
@@ -29,8 +30,22 @@ describe('pipeline files', () => {
   it('loads pipelines/default.json with every template but the lexicon one', () => {
     const p = loadPipeline(join(root, 'pipelines/default.json'));
     expect(p.config.templates.map((t) => t.template)).toEqual([...TEMPLATES.keys()].filter((t) => t !== 'lexicon.v1'));
-    expect(p.hashing).toEqual({ bits: 20, seed: 0, pseudoConstant: true, names: 0 });
+    expect(p.hashing).toEqual({ bits: 20, seed: 0, dropUniform: true, names: 0 });
+    expect(p.encode).toEqual({ compression: 'gzip', level: 1 });
     expect(p.digest).toMatch(/^sha256:[0-9a-f]{64}$/);
+  });
+
+  it('resolves the shipped pipelines by name', () => {
+    expect(loadPipeline('default').digest).toBe(loadPipeline(join(root, 'pipelines/default.json')).digest);
+    expect(loadPipeline('demo').config.templates.map((t) => t.template)).toContain('lexicon.v1');
+    expect(() => loadPipeline('defualt')).toThrow(/expected a pipeline file or one of the shipped pipelines: `default`, `demo`/);
+  });
+
+  it('rebuilds the same pipeline from its resolved config and file bytes (what workers get)', () => {
+    const p = loadPipeline(join(root, 'pipelines/demo.json'));
+    const q = rebuildPipeline(p.config, p.files);
+    expect(q.config).toEqual(p.config);
+    expect(() => rebuildPipeline(p.config, {})).toThrow(/reads `\.\.\/demo-corpus\/lexicon\.tsv`, which was not handed over/);
   });
 
   it('loads pipelines/demo.json and reads its lexicon relative to the pipeline file', () => {
@@ -42,7 +57,7 @@ describe('pipeline files', () => {
   it('gives the same digest for the same config, a different one for a changed option', () => {
     const a = loadPipeline(withChange(() => {}));
     const b = loadPipeline(withChange(() => {}));
-    const c = loadPipeline(withChange((p) => { p.stages.find((s: any) => s.stage === 'hash-features.v1').bits = 18; }));
+    const c = loadPipeline(withChange((p) => { p.stages.find((s: any) => s.stage === 'hash-features.v2').bits = 18; }));
     expect(a.digest).toBe(b.digest);
     expect(c.digest).not.toBe(a.digest);
   });
@@ -58,6 +73,9 @@ describe('pipeline files', () => {
     ['an unreadable lexicon', (p: any) => extract(p).templates.push({ template: 'lexicon.v1', path: 'nope.tsv' }), /cannot read `nope\.tsv`/],
     ['a wrong format tag', (p: any) => { p.format = 'sheaf-pipeline/0'; }, /expected `format` to be `sheaf-pipeline\/1`/],
     ['a template listed twice', (p: any) => extract(p).templates.push({ template: 'rules.v1' }), /listed twice/],
+    ['an option named like an object built-in', (p: any) => { extract(p).templates[0].constructor = true; }, /unknown option `constructor`; expected one of: `lexical`/],
+    ['an option named __proto__', (p: any) => { Object.defineProperty(extract(p).templates[0], '__proto__', { value: { x: 1 }, enumerable: true }); }, /unknown option `__proto__`/],
+    ['a stage of an older version, listing the current ones', (p: any) => { p.stages[5].stage = 'hash-features.v1'; }, /unknown stage `hash-features\.v1`; valid stages: .*`hash-features\.v2`/],
   ])('refuses %s', (_, change, message) => {
     const file = withChange(change);
     expect(() => loadPipeline(file)).toThrow(UsageError);

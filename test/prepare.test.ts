@@ -1,25 +1,36 @@
 /**
  * `sheaf prepare` end to end on small data made from the demo corpus
  * (synthetic n-best lists). Outside checks: an independent MessagePack
- * decoder (@msgpack/msgpack, npm) reads every shard and must agree with
- * sheaf's own reader; determinism across worker counts and input splits is
- * checked by sha256.
+ * decoder (@msgpack/msgpack, npm) with Node's gunzip reads every shard and
+ * must agree with sheaf's own reader; the absolute vectors that `inspect`
+ * shows equal the direct path's, recomputed from the dumps; determinism
+ * across worker counts and input splits is checked by sha256.
  */
 import { createHash } from 'node:crypto';
-import { mkdtempSync, readFileSync, writeFileSync, readdirSync, existsSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { gzipSync } from 'node:zlib';
+import { gunzipSync, gzipSync } from 'node:zlib';
 import { decodeMulti } from '@msgpack/msgpack';
-import { beforeAll, describe, expect, it } from 'vitest';
-import { runPrepare, SimulatedStop, type PrepareOptions } from '../src/commands/prepare.js';
-import { makeDemoData, type DemoData } from '../src/demo/make-demo-data.js';
-import { readShard, readManifest } from '../src/io/read-shards.js';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createVocabulary } from '../src/core/interner.js';
 import { bucketOf, murmur3String } from '../src/core/murmur3.js';
+import { directVectors } from '../src/features/direct-vectors.js';
+import { decodeCounts } from '../src/formats/counts-file.js';
+import { MsgpackReader } from '../src/formats/msgpack.js';
+import { toShardSentence } from '../src/formats/shard-record.js';
+import { makeDemoData, type DemoData } from '../src/demo/make-demo-data.js';
+import { absoluteVectors, sentenceView } from '../src/inspect/inspect-shards.js';
+import { loadPipeline } from '../src/io/load-pipeline.js';
+import { readManifest, readShard, readShardDir } from '../src/io/read-shards.js';
+import { runPrepare, SimulatedStop, type PrepareOptions } from '../src/prepare/run-prepare.js';
+import { parseCandidates } from '../src/stages/parse-candidates.js';
+import type { ShardSentence } from '../src/records.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-prepare-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 let data: DemoData;
 let gold: string;
 let pipeline: string;
@@ -29,33 +40,44 @@ const out = () => join(dir, `out${n++}`);
 
 beforeAll(async () => {
   // The first 90 demo trees, and a pipeline with small shards so runs span several.
-  const trees = readFileSync(join(root, 'demo-corpus/huts.mrg'), 'utf8').split(/\n(?=\( \()/).slice(0, 90);
-  gold = join(dir, 'gold.mrg');
+  const trees = readFileSync(join(root, 'demo-corpus/huts.trees'), 'utf8').split(/\n(?=\( \()/).slice(0, 90);
+  gold = join(dir, 'gold.trees');
   writeFileSync(gold, trees.join('\n') + '\n');
   data = await makeDemoData(gold, join(dir, 'in'), { folds: 3, nbest: 8 });
   const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
   p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 25;
   p.stages.find((s: any) => s.stage === 'extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
-  p.stages.find((s: any) => s.stage === 'hash-features.v1').names = 0;
+  p.stages.find((s: any) => s.stage === 'hash-features.v2').names = 0;
   pipeline = join(dir, 'pipeline.json');
   writeFileSync(pipeline, JSON.stringify(p));
-  p.stages.find((s: any) => s.stage === 'hash-features.v1').names = 2;
+  p.stages.find((s: any) => s.stage === 'hash-features.v2').names = 2;
   namesPipeline = join(dir, 'pipeline-names.json');
   writeFileSync(namesPipeline, JSON.stringify(p));
 });
 
 const run = (o: Partial<PrepareOptions> = {}) => runPrepare({ gold, nbest: data.dumps, pipeline, out: out(), plan: data.plan, workers: 0, quiet: true, ...o });
-const shardHashes = (d: string) => readManifest(d).shards.map((s) => s.sha256);
+const shardHashes = (d: string) => readManifest(d).shards.map((s) => [s.sha256, s.countsSha256]);
 const sha = (f: string) => `sha256:${createHash('sha256').update(readFileSync(f)).digest('hex')}`;
+async function all(d: string): Promise<ShardSentence[]> {
+  const xs: ShardSentence[] = [];
+  for await (const s of readShardDir(d)) xs.push(s);
+  return xs;
+}
 
 describe('sheaf prepare', () => {
   it('writes every sentence, reconciles totals, and records shard sha256 that match the files', async () => {
     const s = await run();
     expect(s).toMatchObject({ read: 90, written: 90, rejected: 0, goldTrees: 90, goldWithoutNbest: 0, shards: 4 });
     const m = readManifest(s.out);
-    for (const sh of m.shards) expect(sha(join(s.out, sh.file))).toBe(sh.sha256);
+    for (const sh of m.shards) {
+      expect(sha(join(s.out, sh.file))).toBe(sh.sha256);
+      expect(sha(join(s.out, sh.counts))).toBe(sh.countsSha256);
+    }
     expect(m.shards.map((x) => x.sentences)).toEqual([25, 25, 25, 15]);
-    expect(readdirSync(s.out).filter((f) => f.endsWith('.tmp'))).toEqual([]);
+    expect(m.inputs.nbest.map((x) => x.records).reduce((a, b) => a + b)).toBe(90);
+    expect(readdirSync(s.out).filter((f) => f.endsWith('.tmp') || f.startsWith('.'))).toEqual([]);
+    // Input positions 0 … 89, each once.
+    expect((await all(s.out)).map((x) => x.pos).sort((a, b) => a - b)).toEqual([...Array(90).keys()]);
   });
 
   it('gives byte-identical shards with 0, 1, 2 and 4 workers', async () => {
@@ -65,10 +87,10 @@ describe('sheaf prepare', () => {
   });
 
   it('gives byte-identical shards when the same input is split into different dump files', async () => {
-    const all = data.dumps.map((f) => readFileSync(f, 'utf8')).join('');
-    const lines = all.trim().split('\n');
+    const text = data.dumps.map((f) => readFileSync(f, 'utf8')).join('');
+    const lines = text.trim().split('\n');
     const one = join(dir, 'all.jsonl');
-    writeFileSync(one, all);
+    writeFileSync(one, text);
     const a = join(dir, 'part-a.jsonl');
     const b = join(dir, 'part-b.jsonl.gz');
     writeFileSync(a, lines.slice(0, 37).join('\n') + '\n');
@@ -84,28 +106,42 @@ describe('sheaf prepare', () => {
     expect(shardHashes(s.out)).toEqual(whole);
   });
 
-  it('reads back the same records with an independent MessagePack decoder (@msgpack/msgpack)', async () => {
+  it('reads back the same records with an independent decoder (@msgpack/msgpack after Node\'s gunzip)', async () => {
     const s = await run();
     const m = readManifest(s.out);
     let sentences = 0;
     for (const sh of m.shards) {
-      const ours = [];
+      const ours: ShardSentence[] = [];
       for await (const r of readShard(join(s.out, sh.file))) ours.push(r);
-      const theirs = [...decodeMulti(readFileSync(join(s.out, sh.file)))] as any[];
+      const theirs = [...decodeMulti(gunzipSync(readFileSync(join(s.out, sh.file))))] as any[];
       expect(theirs.length).toBe(ours.length);
+      const le = (b: Uint8Array, dtype: string) => {
+        const dv = new DataView(b.buffer, b.byteOffset, b.byteLength);
+        const width = { '<u4': 4, '<i1': 1, '<i2': 2, '<i4': 4, '<f4': 4, '<f8': 8 }[dtype]!;
+        return Array.from({ length: b.byteLength / width }, (_, i) => {
+          switch (dtype) {
+            case '<u4': return dv.getUint32(4 * i, true);
+            case '<i1': return dv.getInt8(i);
+            case '<i2': return dv.getInt16(2 * i, true);
+            case '<i4': return dv.getInt32(4 * i, true);
+            case '<f4': return dv.getFloat32(4 * i, true);
+            default: return dv.getFloat64(8 * i, true);
+          }
+        });
+      };
       theirs.forEach((t, k) => {
         const o = ours[k];
-        expect(Object.keys(t)).toEqual(['id', 'fold', 'gold', 'flag', 'cands']);
-        expect([t.id, t.fold, t.gold, t.flag]).toEqual([o.id, o.fold, o.gold, o.flag]);
+        expect(Object.keys(t)).toEqual(['id', 'pos', 'fold', 'gold', 'len', 'flag', 'ref', 'cands']);
+        expect([t.id, t.pos, t.fold, t.gold, t.len, t.flag]).toEqual([o.id, o.pos, o.fold, o.gold, o.len, o.flag]);
+        expect(le(t.ref.idx, '<u4')).toEqual(Array.from(o.ref!.idx));
+        expect(le(t.ref.val, t.ref.dtype)).toEqual(Array.from(o.ref!.val));
         t.cands.forEach((c: any, j: number) => {
           const oc = o.cands[j];
+          expect(Object.keys(c)).toEqual(['score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype']);
           expect([c.score, c.rank, c.matched, c.test]).toEqual([oc.score, oc.rank, oc.matched, oc.test]);
-          const dv = new DataView(c.idx.buffer, c.idx.byteOffset, c.idx.byteLength);
-          const idx = Array.from({ length: c.idx.byteLength / 4 }, (_, i) => dv.getUint32(4 * i, true));
-          const vv = new DataView(c.val.buffer, c.val.byteOffset, c.val.byteLength);
-          const val = Array.from({ length: c.val.byteLength / 4 }, (_, i) => vv.getFloat32(4 * i, true));
-          expect(idx).toEqual(Array.from(oc.idx));
-          expect(val).toEqual(Array.from(oc.val));
+          const idx = le(c.idx, '<u4');
+          expect(idx).toEqual(Array.from(oc.diff.idx));
+          expect(le(c.val, c.dtype)).toEqual(Array.from(oc.diff.val));
           for (let i = 1; i < idx.length; i++) expect(idx[i]).toBeGreaterThan(idx[i - 1]);
         });
         sentences++;
@@ -114,17 +150,55 @@ describe('sheaf prepare', () => {
     expect(sentences).toBe(90);
   });
 
+  it('stores vectors whose absolute form equals the direct path recomputed from the dumps', async () => {
+    const s = await run();
+    const p = loadPipeline(pipeline);
+    const parse = parseCandidates(p.parse);
+    const lists = new Map<string, { tree: string; score: number }[]>();
+    for (const f of data.dumps) for (const l of readFileSync(f, 'utf8').trim().split('\n')) lists.set(JSON.parse(l).id, JSON.parse(l).candidates);
+    let checked = 0;
+    for (const sent of await all(s.out)) {
+      const vocab = createVocabulary();
+      const list = lists.get(sent.id)!;
+      const trees = parse(list, vocab);
+      const direct = directVectors({ templates: p.templates, bits: p.hashing.bits, seed: p.hashing.seed }, trees.map((tree, rank) => ({ tree, score: list[rank].score, rank })));
+      const abs = absoluteVectors(sent);
+      expect(abs.map((v) => Array.from(v.idx))).toEqual(direct.map((v) => Array.from(v.idx)));
+      abs.forEach((v, c) => v.val.forEach((x, k) => expect(Math.abs(x - direct[c].val[k])).toBeLessThanOrEqual(1e-6 * Math.abs(x))));
+      expect(sentenceView(sent)).toMatchObject({ id: sent.id, len: trees[0].wordNodes.length });
+      checked++;
+    }
+    expect(checked).toBe(90);
+  });
+
+  it('records where each sentence starts, so one record can be read on its own', async () => {
+    const s = await run();
+    const m = readManifest(s.out);
+    const sh = m.shards[1];
+    const counts = decodeCounts(readFileSync(join(s.out, sh.counts)), sh.counts);
+    expect(counts.offsets.length).toBe(sh.sentences);
+    const bytes = readFileSync(join(s.out, sh.file));
+    const ours: ShardSentence[] = [];
+    for await (const r of readShard(join(s.out, sh.file))) ours.push(r);
+    for (const k of [0, 7, sh.sentences - 1]) {
+      const end = k + 1 < counts.offsets.length ? counts.offsets[k + 1] : bytes.length;
+      const one = toShardSentence(new MsgpackReader(gunzipSync(bytes.subarray(counts.offsets[k], end))).decode());
+      expect(one.id).toBe(ours[k].id);
+      expect(one.pos).toBe(ours[k].pos);
+    }
+  });
+
   it('resumes an interrupted run from the last complete shard and gives the same bytes', async () => {
     const full = shardHashes((await run()).out);
     const o = out();
     await expect(runPrepare({ gold, nbest: data.dumps, pipeline, out: o, plan: data.plan, workers: 2, quiet: true, stopAfterShards: 2 })).rejects.toBeInstanceOf(SimulatedStop);
     expect(existsSync(join(o, 'manifest.json'))).toBe(false);
     const again = await runPrepare({ gold, nbest: data.dumps, pipeline, out: o, plan: data.plan, workers: 2, quiet: true });
-    expect(again.resumedFromShard).toBe(2);
+    expect(again.resumedShards).toBe(2);
     expect(shardHashes(o)).toEqual(full);
     expect(readFileSync(join(o, 'rejects.jsonl'), 'utf8')).toBe('');
     const done = await runPrepare({ gold, nbest: data.dumps, pipeline, out: o, plan: data.plan, workers: 2, quiet: true });
-    expect(done.upToDate).toBe(true);
+    expect(done).toMatchObject({ upToDate: true, resumedShards: 0, written: 90 });
   });
 
   it('keeps canonical names per bucket, the same whatever the worker count, with the collision rate', async () => {
@@ -140,9 +214,20 @@ describe('sheaf prepare', () => {
       for (const k of keys) expect(String(bucketOf(murmur3String(k, 0), 20))).toBe(bucket);
       if (++checked > 500) break;
     }
-    const m = readManifest(a.out) as any;
-    expect(m.names.keys).toBeGreaterThanOrEqual(m.names.buckets);
-    expect(m.names.collisionRate).toBeCloseTo(1 - m.names.buckets / m.names.keys, 12);
+    const m = readManifest(a.out);
+    expect(m.names!.keys).toBeGreaterThanOrEqual(m.names!.buckets);
+    expect(m.names!.collisionRate).toBeCloseTo(1 - m.names!.buckets / m.names!.keys, 12);
+  });
+
+  it('records per shard, per template, the buckets fired and those that vary', async () => {
+    const s = await run();
+    const m = readManifest(s.out);
+    const ids = loadPipeline(pipeline).config.templates.map((t) => t.template);
+    for (const sh of m.shards) {
+      expect(Object.keys(sh.templates)).toEqual(ids);
+      for (const [fired, varying] of Object.values(sh.templates)) expect(varying).toBeLessThanOrEqual(fired);
+      expect(sh.templates['rules.v1'][1]).toBeGreaterThan(0);
+    }
   });
 
   it('refuses lists from the wrong fold\'s model when given the plan, naming sentence and folds', async () => {
@@ -182,36 +267,37 @@ describe('sheaf prepare', () => {
       lines[0],                                                            // 8 duplicate id
       mutate(7, (r) => { r.id = 'no-such-id'; }),                          // 9 no gold
       mutate(8, (r) => { r.candidates = []; }),                            // 10 no candidates: kept
+      mutate(9, (r) => { r.fold = 9007199254740993; }),                    // 11 fold beyond the safe integers
     ].join('\n') + '\n';
     const f = join(dir, 'bad.jsonl');
     writeFileSync(f, body);
-    const gz = gzipSync(lines.slice(9).join('\n') + '\n');
+    const gz = gzipSync(lines.slice(10).join('\n') + '\n');
     const g = join(dir, 'cut.jsonl.gz');
     writeFileSync(g, gz.subarray(0, Math.floor(gz.length / 2)));
     const s = await run({ nbest: [f, g] });
     const rej = readFileSync(join(s.out, 'rejects.jsonl'), 'utf8').trim().split('\n').map((l) => JSON.parse(l));
     const byLine = rej.filter((r) => r.file === f).map((r) => [r.line, r.code]);
-    expect(byLine).toEqual([[2, 'bad-json'], [3, 'bad-field'], [4, 'bad-field'], [5, 'bad-json'], [6, 'unbalanced'], [7, 'yield-mismatch'], [8, 'duplicate-id'], [9, 'no-gold']]);
+    expect(byLine).toEqual([[2, 'bad-json'], [3, 'bad-field'], [4, 'bad-field'], [5, 'bad-json'], [6, 'unbalanced'], [7, 'yield-mismatch'], [8, 'duplicate-id'], [9, 'no-gold'], [11, 'bad-field']]);
     expect(rej.find((r) => r.code === 'yield-mismatch').reason).toMatch(/candidate 0: .*gold `[^`]+`, candidate `zebra`/);
     expect(rej.find((r) => r.file === g)).toMatchObject({ code: 'truncated' });
+    for (const r of rej) expect(Object.keys(r)).toEqual(['file', 'line', 'column', 'id', 'code', 'reason']);
     expect(s.read).toBe(s.written + s.rejected);
     expect(s.noCandidates).toBe(1);
-    const m = readManifest(s.out);
-    const flagged = [];
-    for (const sh of m.shards) for await (const r of readShard(join(s.out, sh.file))) if (r.flag) flagged.push([r.id, r.flag, r.cands.length]);
-    expect(flagged).toEqual([[rec(8).id, 'no-candidates', 0]]);
+    const flagged = (await all(s.out)).filter((r) => r.flag).map((r) => [r.id, r.flag, r.cands.length, r.ref]);
+    expect(flagged).toEqual([[rec(8).id, 'no-candidates', 0, null]]);
   });
 
   it('writes per-shard count arrays whose sum over shards is the per-bucket sentence count, also for a 2^26 hash space', async () => {
     for (const bits of [20, 26]) {
       const p = JSON.parse(readFileSync(pipeline, 'utf8'));
-      p.stages.find((x: any) => x.stage === 'hash-features.v1').bits = bits;
+      p.stages.find((x: any) => x.stage === 'hash-features.v2').bits = bits;
       const file = join(dir, `pipeline-bits-${bits}.json`);
       writeFileSync(file, JSON.stringify(p));
       const s = await run({ pipeline: file });
       const m = readManifest(s.out);
       const fromCounts = new Map<number, number>();
       for (const sh of m.shards) {
+        // Read with the independent decoder.
         const [c] = [...decodeMulti(readFileSync(join(s.out, sh.counts)))] as any[];
         expect(c.bits).toBe(bits);
         const idx = new Uint32Array(new Uint8Array(c.idx).buffer);
@@ -220,15 +306,27 @@ describe('sheaf prepare', () => {
         idx.forEach((i, k) => fromCounts.set(i, (fromCounts.get(i) ?? 0) + cnt[k]));
       }
       const fromShards = new Map<number, number>();
-      for (const sh of m.shards) {
-        for await (const r of readShard(join(s.out, sh.file))) {
-          const seen = new Set<number>();
-          for (const c of r.cands) for (const i of c.idx) seen.add(i);
-          for (const i of seen) fromShards.set(i, (fromShards.get(i) ?? 0) + 1);
-        }
+      for (const r of await all(s.out)) {
+        const seen = new Set<number>();
+        for (const c of r.cands) for (const i of c.diff.idx) seen.add(i);
+        for (const i of seen) fromShards.set(i, (fromShards.get(i) ?? 0) + 1);
       }
       expect([...fromCounts].sort((a, b) => a[0] - b[0])).toEqual([...fromShards].sort((a, b) => a[0] - b[0]));
     }
+  });
+
+  it('writes plain MessagePack when compression is off, with the same records', async () => {
+    const p = JSON.parse(readFileSync(pipeline, 'utf8'));
+    p.stages.find((x: any) => x.stage === 'encode-shard.v2').compression = 'none';
+    const file = join(dir, 'pipeline-plain.json');
+    writeFileSync(file, JSON.stringify(p));
+    const plain = await run({ pipeline: file });
+    const gz = await run();
+    const m = readManifest(plain.out);
+    expect(m.shards[0].file).toMatch(/^shard-00000\.msgpack$/);
+    expect(m.shards[0].bytes).toBe(m.shards[0].rawBytes);
+    const strip = (xs: ShardSentence[]) => xs.map((x) => sentenceView(x));
+    expect(strip(await all(plain.out))).toEqual(strip(await all(gz.out)));
   });
 
   it('stops at the first bad record with --strict', async () => {

@@ -168,6 +168,6 @@ describe('readTreebank: bad input names file, line, column', () => {
   });
 
   it('a missing file is a usage error that names it', async () => {
-    await expect(readAll(join(dir, 'nope.mrg'))).rejects.toThrow(/no such file/);
+    await expect(readAll(join(dir, 'nope.trees'))).rejects.toThrow(/no such file/);
   });
 });

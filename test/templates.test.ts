@@ -100,14 +100,20 @@ describe('templates on hand-worked trees', () => {
     ]);
   });
 
-  it('edges.v1: edge words and tags, words outside the span', () => {
-    const keys = run(configure('edges.v1'), porter).emitted('edges.v1 ');
-    expect(keys).toContain('edges.v1 first-word VP carried');
-    expect(keys).toContain('edges.v1 last-tag VP NNS');
-    expect(keys).toContain('edges.v1 before-word VP porter');
-    expect(keys).toContain('edges.v1 after-word VP </s>');
-    expect(keys).toContain('edges.v1 before-word S <s>');
+  it('boundary-words.v1: boundary words and tags, words outside the span', () => {
+    const keys = run(configure('boundary-words.v1'), porter).emitted('boundary-words.v1 ');
+    expect(sorted(keys.filter((k) => k.includes(' VP ')))).toEqual(sorted([
+      'boundary-words.v1 first-word VP carried', 'boundary-words.v1 last-word VP crates',
+      'boundary-words.v1 first-tag VP VBD', 'boundary-words.v1 last-tag VP NNS',
+      'boundary-words.v1 word-before VP porter', 'boundary-words.v1 word-after VP </s>',
+    ]));
+    expect(keys).toContain('boundary-words.v1 word-before S <s>');
     expect(keys).toHaveLength(4 * 6);
+    const tags = run(configure('boundary-words.v1', { parts: ['tag-before', 'tag-after'] }), porter).emitted();
+    expect(sorted(tags.filter((k) => k.includes(' NP ')))).toEqual(sorted([
+      'boundary-words.v1 tag-before NP <s>', 'boundary-words.v1 tag-after NP VBD',
+      'boundary-words.v1 tag-before NP VBD', 'boundary-words.v1 tag-after NP </s>',
+    ]));
   });
 
   it('branching.v1: right spine, depths and constituents per word as real values', () => {
@@ -155,14 +161,13 @@ describe('templates on hand-worked trees', () => {
     ]);
   });
 
-  it('every registered template documents a summary and an example key, and its example fires on a demo-style tree', () => {
-    const tree = '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (NP (NP (CD two) (NNS crates)) (PP (IN of) (NP (NN flour)))) (CC and) (NP (DT a) (NN lamp))) (PP (TO to) (NP (DT the) (NN hut)))) (. .))';
-    for (const [id, t] of TEMPLATES) {
-      expect(t.summary.length, id).toBeGreaterThan(10);
-      expect(t.example.startsWith(id), id).toBe(true);
-      const opts = id === 'lexicon.v1' ? { path: 'l' } : {};
-      const keys = run(configure(id, opts, { l: 'crates\tcontainer\nflour\tsupply\n' }), tree, { rank: 3 }).emitted();
-      expect(keys.length, id).toBeGreaterThan(0);
-    }
+  it.each([...TEMPLATES.keys()])('%s: its documented example key fires on its documented example tree', (id) => {
+    const t = TEMPLATES.get(id)!;
+    expect(t.summary.length).toBeGreaterThan(10);
+    expect(t.example.startsWith(`${id} `)).toBe(true);
+    const opts = id === 'lexicon.v1' ? { path: 'l' } : {};
+    // The lexicon example needs the demo lexicon's class of its object.
+    const keys = run(configure(id, opts, { l: 'stove\tappliance\n' }), t.exampleTree).emitted();
+    expect(keys).toContain(t.example);
   });
 });

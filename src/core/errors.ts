@@ -31,7 +31,8 @@ export type DataErrorCode =
   | 'duplicate-id'
   | 'no-gold'
   | 'leak'
-  | 'truncated';
+  | 'truncated'
+  | 'bad-shard';
 
 function where(loc: Location): string {
   const parts: string[] = [];

@@ -24,13 +24,13 @@ export function checkOptions(given: Record<string, unknown>, schema: OptionSchem
   const out: OptionValues = {};
   for (const key of Object.keys(given)) {
     if (reserved.includes(key)) continue;
-    if (!(key in schema)) {
+    if (!Object.hasOwn(schema, key)) {
       const valid = Object.keys(schema);
       throw new UsageError(`${where}: unknown option \`${key}\`; expected one of: ${valid.length ? valid.map((k) => `\`${k}\``).join(', ') : '(none: this block takes no options)'}`);
     }
   }
   for (const [key, spec] of Object.entries(schema)) {
-    const v = given[key];
+    const v = Object.hasOwn(given, key) ? given[key] : undefined;
     if (v === undefined) {
       out[key] = spec.default;
       continue;

@@ -8,7 +8,7 @@ import { ancestors } from './templates/ancestors.js';
 import { baseScore } from './templates/base-score.js';
 import { branching } from './templates/branching.js';
 import { coordination } from './templates/coordination.js';
-import { edges } from './templates/edges.js';
+import { boundaryWords } from './templates/boundary-words.js';
 import { headDeps } from './templates/head-deps.js';
 import { headRules } from './templates/head-rules.js';
 import { lexicon } from './templates/lexicon.js';
@@ -17,5 +17,5 @@ import { siblings } from './templates/siblings.js';
 import { spanShape } from './templates/span-shape.js';
 
 export const TEMPLATES: ReadonlyMap<string, FeatureTemplate> = new Map(
-  [rules, ancestors, headRules, headDeps, siblings, spanShape, edges, branching, coordination, lexicon, baseScore].map((t) => [t.id, t]),
+  [rules, ancestors, headRules, headDeps, siblings, spanShape, boundaryWords, branching, coordination, lexicon, baseScore].map((t) => [t.id, t]),
 );

@@ -53,6 +53,8 @@ export interface FeatureTemplate {
   summary: string;
   /** One example key from the demo scenario. */
   example: string;
+  /** A demo-scenario tree whose features include `example` (a test checks it fires). */
+  exampleTree: string;
   options: OptionSchema;
   configure(options: OptionValues, context: ConfigureContext): ConfiguredTemplate;
 }

@@ -1,27 +1,26 @@
 /**
  * The gold side of the join. The gold treebank is streamed once; each tree is
- * written (as one bracketed line) to a spill file on disk and indexed by id:
- * in memory stay only the id → ordinal map and, per gold sentence, an offset,
- * a length, a fold and a seen flag — about 70–100 bytes per gold sentence
- * (mostly the Map entry and the id string), against ~400 bytes of tree text
- * kept on disk. Dumps may then come in any order of folds; each lookup is one
- * positional read.
+ * written (normalised, as one bracketed line) to a spill file on disk and
+ * indexed by id: in memory stay the id table (core/id-table.ts) and, per gold
+ * sentence, a spill offset and length, a fold, a seen flag and its line —
+ * about 45–55 bytes per gold sentence. Dumps may then come in any order; each
+ * lookup is one positional read.
  */
 import { closeSync, openSync, readSync, writeSync } from 'node:fs';
 import { DataError } from '../core/errors.js';
+import { IdTable } from '../core/id-table.js';
 import { createVocabulary } from '../core/interner.js';
 import { writeTree } from '../core/write-brackets.js';
 import type { RejectRecord } from '../records.js';
 import { readTreebank } from './read-treebank.js';
 
 export class GoldIndex {
-  private readonly ids = new Map<string, number>();
+  private readonly ids = new IdTable();
   private offsets = new Float64Array(1024);
   private lengths = new Int32Array(1024);
   private folds = new Int32Array(1024).fill(-1);
   private seenFlags = new Uint8Array(1024);
-  private firstLines = new Int32Array(1024);
-  private n = 0;
+  private lines = new Int32Array(1024);
   private fd: number;
   private written = 0;
   private pending: Buffer[] = [];
@@ -34,32 +33,35 @@ export class GoldIndex {
   /** Reads the whole gold treebank; bad trees and duplicate ids go to `onReject`. */
   static async build(file: string, spillPath: string, onReject: (r: RejectRecord) => void, tap?: (c: Buffer) => void): Promise<GoldIndex> {
     const index = new GoldIndex(spillPath, file);
-    const vocab = createVocabulary();
-    const rejectOf = (e: DataError): RejectRecord => ({ file: e.file ?? file, line: e.line ?? null, id: e.id ?? null, code: e.code, reason: e.reason });
-    for await (const rec of readTreebank(file, { vocab, onBad: (e) => onReject(rejectOf(e)), tap })) {
-      const prior = index.ids.get(rec.id);
-      if (prior !== undefined) {
-        onReject({ file, line: rec.line, id: rec.id, code: 'duplicate-id', reason: `gold id \`${rec.id}\` appears again (first at line ${index.firstLines[prior]}); the later tree is refused` });
-        continue;
+    try {
+      const vocab = createVocabulary();
+      const rejectOf = (e: DataError): RejectRecord => ({ file: e.file ?? file, line: e.line ?? null, column: e.column ?? null, id: e.id ?? null, code: e.code, reason: e.reason });
+      for await (const rec of readTreebank(file, { vocab, onBad: (e) => onReject(rejectOf(e)), tap })) {
+        const k = index.ids.add(rec.id);
+        if (k < 0) {
+          onReject({ file, line: rec.line, column: rec.column, id: rec.id, code: 'duplicate-id', reason: `gold id \`${rec.id}\` appears again (first at line ${index.lines[-1 - k]}); the later tree is refused` });
+          continue;
+        }
+        index.add(k, writeTree(rec.tree), rec.line);
       }
-      index.add(rec.id, writeTree(rec.tree), rec.line);
+      index.flush();
+    } catch (e) {
+      index.close();
+      throw e;
     }
-    index.flush();
     return index;
   }
 
   get size(): number {
-    return this.n;
+    return this.ids.size;
   }
 
-  private add(id: string, text: string, line: number): void {
-    if (this.n === this.offsets.length) this.grow();
+  private add(k: number, text: string, line: number): void {
+    if (k === this.offsets.length) this.grow();
     const bytes = Buffer.from(text, 'utf8');
-    this.ids.set(id, this.n);
-    this.offsets[this.n] = this.written + this.pendingBytes;
-    this.lengths[this.n] = bytes.length;
-    this.firstLines[this.n] = line;
-    this.n++;
+    this.offsets[k] = this.written + this.pendingBytes;
+    this.lengths[k] = bytes.length;
+    this.lines[k] = line;
     this.pending.push(bytes);
     this.pendingBytes += bytes.length;
     if (this.pendingBytes > 1 << 20) this.flush();
@@ -85,12 +87,12 @@ export class GoldIndex {
     this.lengths = g(this.lengths, (k) => new Int32Array(k));
     this.folds = g(this.folds, (k) => new Int32Array(k), -1);
     this.seenFlags = g(this.seenFlags, (k) => new Uint8Array(k));
-    this.firstLines = g(this.firstLines, (k) => new Int32Array(k));
+    this.lines = g(this.lines, (k) => new Int32Array(k));
   }
 
   /** Ordinal of a gold id, or -1. */
   ordinal(id: string): number {
-    return this.ids.get(id) ?? -1;
+    return this.ids.get(id);
   }
 
   /** The gold tree text of an ordinal (one positional read). */
@@ -111,7 +113,7 @@ export class GoldIndex {
   /** Gold sentences no dump mentioned. */
   unseen(): number {
     let k = 0;
-    for (let i = 0; i < this.n; i++) if (!this.seenFlags[i]) k++;
+    for (let i = 0; i < this.size; i++) if (!this.seenFlags[i]) k++;
     return k;
   }
 

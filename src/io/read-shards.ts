@@ -1,61 +1,74 @@
 /**
- * sheaf's own shard reader (msgpackr, streamed: a shard is never loaded
- * whole). Typed arrays come back as Uint32Array / Float32Array copies, so
- * they are aligned whatever the byte offset inside the file.
+ * sheaf's own shard reader: streams a shard file (gzip members or plain
+ * MessagePack, told apart by magic bytes), decodes records one by one with
+ * the strict decoder of formats/msgpack.ts, and checks each
+ * (formats/shard-record.ts). A shard is never loaded whole.
  */
-import { createReadStream, readFileSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { UnpackrStream } from 'msgpackr';
-import { UsageError } from '../core/errors.js';
-import type { SentenceRecord } from '../core/encode-sentence.js';
+import { DataError, UsageError } from '../core/errors.js';
+import { parseManifest, type ShardManifest } from '../formats/manifest.js';
+import { MsgpackError, MsgpackReader } from '../formats/msgpack.js';
+import { toShardSentence } from '../formats/shard-record.js';
+import type { ShardSentence } from '../records.js';
+import { readBytes } from './open-input.js';
 
-function u32(b: Uint8Array): Uint32Array {
-  const copy = new Uint8Array(b.byteLength);
-  copy.set(b);
-  return new Uint32Array(copy.buffer);
-}
-
-function f32(b: Uint8Array): Float32Array {
-  const copy = new Uint8Array(b.byteLength);
-  copy.set(b);
-  return new Float32Array(copy.buffer);
-}
-
-/** Converts one decoded map to a SentenceRecord (typed arrays restored). */
-export function toSentence(raw: any): SentenceRecord {
-  return {
-    id: raw.id,
-    fold: raw.fold ?? null,
-    gold: raw.gold,
-    flag: raw.flag ?? null,
-    cands: raw.cands.map((c: any) => ({ score: c.score, rank: c.rank, matched: c.matched, test: c.test, idx: u32(c.idx), val: f32(c.val) })),
-  };
-}
+export const MANIFEST = 'manifest.json';
 
 /** Sentences of one shard file, in order. */
-export async function* readShard(file: string): AsyncGenerator<SentenceRecord> {
-  const stream = createReadStream(file).pipe(new UnpackrStream({ mapsAsObjects: true }));
-  for await (const raw of stream) yield toSentence(raw);
+export async function* readShard(file: string): AsyncGenerator<ShardSentence> {
+  const reader = new MsgpackReader(new Uint8Array(0));
+  let buf: Uint8Array = new Uint8Array(0);
+  let record = 0;
+  let consumed = 0;
+  for await (const b of readBytes(file)) {
+    // A plain view: Buffer's slice() semantics must not leak into decoded records.
+    const chunk = new Uint8Array(b.buffer, b.byteOffset, b.byteLength);
+    if (buf.length === 0) buf = chunk;
+    else {
+      const joined = new Uint8Array(buf.length + chunk.length);
+      joined.set(buf);
+      joined.set(chunk, buf.length);
+      buf = joined;
+    }
+    reader.load(buf);
+    for (;;) {
+      if (reader.done) break;
+      let raw;
+      try {
+        raw = reader.decode();
+      } catch (e) {
+        if (e instanceof MsgpackError && e.truncated) break;
+        throw new DataError('bad-shard', `record ${record + 1} (byte ${consumed + reader.offset} of the decompressed data): ${(e as Error).message}`, { file }, { cause: e });
+      }
+      let s: ShardSentence;
+      try {
+        s = toShardSentence(raw);
+      } catch (e) {
+        if (e instanceof DataError) throw new DataError('bad-shard', `record ${record + 1}: ${e.reason}`, { file }, { cause: e });
+        throw e;
+      }
+      record++;
+      yield s;
+    }
+    consumed += reader.offset;
+    buf = buf.subarray(reader.offset);
+  }
+  if (buf.length > 0) throw new DataError('bad-shard', `the data ends inside record ${record + 1} (${buf.length} bytes of an incomplete record): the shard is truncated`, { file });
 }
 
-export interface Manifest {
-  format: string;
-  shards: { file: string; sentences: number; candidates: number; bytes: number; sha256: string; counts: string }[];
-  hashing: { bits: number; seed: number };
-  totals: Record<string, number>;
-  [key: string]: unknown;
-}
-
-export function readManifest(dir: string): Manifest {
+/** The checked manifest of a shard directory. */
+export function readManifest(dir: string): ShardManifest {
+  let text: string;
   try {
-    return JSON.parse(readFileSync(join(dir, 'manifest.json'), 'utf8')) as Manifest;
+    text = readFileSync(join(dir, MANIFEST), 'utf8');
   } catch (e) {
     throw new UsageError(`\`${dir}\` is not a complete shard directory (no readable manifest.json; run \`sheaf prepare\` to make one)`, { cause: e });
   }
+  return parseManifest(text, dir);
 }
 
 /** Every sentence of a shard directory, shard by shard. */
-export async function* readShardDir(dir: string): AsyncGenerator<SentenceRecord> {
-  const m = readManifest(dir);
-  for (const s of m.shards) yield* readShard(join(dir, s.file));
+export async function* readShardDir(dir: string, manifest: ShardManifest = readManifest(dir)): AsyncGenerator<ShardSentence> {
+  for (const s of manifest.shards) yield* readShard(join(dir, s.file));
 }

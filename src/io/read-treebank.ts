@@ -13,6 +13,7 @@ import type { TreeRecord } from '../records.js';
 
 export type { TreeRecord };
 import { decodeText, readBytes, type BadLine } from './open-input.js';
+import { jsonLines } from './read-jsonl.js';
 
 export type TreebankFormat = 'auto' | 'brackets' | 'jsonl';
 
@@ -25,27 +26,66 @@ export interface ReadTreebankOptions {
   columnOneStartsTree?: boolean;
   /** Sees the raw bytes of the file (for its digest). */
   tap?: (chunk: Buffer) => void;
+  /** The bytes to read instead of opening `file` (tests feed random chunks here). */
+  source?: AsyncIterable<Buffer>;
+}
+
+/** The stream's chunks with the first ones peeked: the first non-space byte says brackets or JSON Lines. */
+async function peekFormat(chunks: AsyncIterable<Buffer>): Promise<{ format: 'brackets' | 'jsonl' | null; all: AsyncIterable<Buffer> }> {
+  const it = chunks[Symbol.asyncIterator]();
+  const seen: Buffer[] = [];
+  let format: 'brackets' | 'jsonl' | null = null;
+  for (;;) {
+    const next = await it.next();
+    if (next.done) break;
+    seen.push(next.value);
+    const b = next.value;
+    let k = seen.length === 1 && b.length >= 3 && b[0] === 0xef && b[1] === 0xbb && b[2] === 0xbf ? 3 : 0;
+    while (k < b.length && (b[k] === 0x20 || b[k] === 0x0a || b[k] === 0x0d || b[k] === 0x09)) k++;
+    if (k < b.length) {
+      format = b[k] === 0x7b /* { */ ? 'jsonl' : 'brackets';
+      break;
+    }
+  }
+  async function* all(): AsyncGenerator<Buffer> {
+    yield* seen;
+    for (;;) {
+      const next = await it.next();
+      if (next.done) return;
+      yield next.value;
+    }
+  }
+  return { format, all: all() };
 }
 
 export async function* readTreebank(file: string, options: ReadTreebankOptions): AsyncGenerator<TreeRecord> {
-  const pieces = decodeText(readBytes(file, options.tap));
   const bad = (e: DataError): void => {
     const located = e.file === undefined ? e.relocate({ file }) : e;
     if (!options.onBad) throw located;
     options.onBad(located);
   };
-  let format = options.format ?? 'auto';
+  const peeked = await peekFormat(options.source ?? readBytes(file, options.tap));
+  const format = options.format === undefined || options.format === 'auto' ? peeked.format : options.format;
+  if (format === null) return;
   const builder = new TreeBuilder(options.vocab);
   let ordinal = 0;
 
-  // Brackets state.
+  if (format === 'jsonl') {
+    for await (const l of jsonLines(peeked.all)) {
+      ordinal++;
+      if (l.bad) {
+        bad(new DataError('invalid-utf8', l.bad.reason, { file, line: l.line, column: l.bad.column }));
+        continue;
+      }
+      const r = fromJsonLine(l.text!, l.line, ordinal, file, options, builder, bad);
+      if (r) yield r;
+    }
+    return;
+  }
+
   const splitter = new BracketSplitter({ maxTreeChars: options.maxTreeChars, columnOneStartsTree: options.columnOneStartsTree });
   const badLines: BadLine[] = [];
   const items: SplitItem[] = [];
-
-  // JSONL state.
-  let partial = '';
-  let jsonLine = 1;
 
   /** The first bad UTF-8 line within [line, endLine], consuming all of them. */
   const takeBadLines = (line: number, endLine: number): BadLine | undefined => {
@@ -88,78 +128,53 @@ export async function* readTreebank(file: string, options: ReadTreebankOptions):
     }
   };
 
-  const fromJsonLine = (text: string, line: number): TreeRecord | null => {
-    ordinal++;
-    let value: unknown;
-    try {
-      value = JSON.parse(text);
-    } catch (e) {
-      bad(new DataError('bad-json', `expected a JSON object {"id", "tree"} on this line: ${(e as Error).message}`, { file, line }));
-      return null;
+  let first = true;
+  for await (const piece of decodeText(peeked.all)) {
+    let text = piece.text;
+    if (first) {
+      if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+      first = false;
     }
-    if (value === null || typeof value !== 'object' || Array.isArray(value)) {
-      bad(new DataError('bad-json', 'expected a JSON object {"id", "tree"} on this line', { file, line }));
-      return null;
-    }
-    const rec = value as { id?: unknown; tree?: unknown };
-    const id = rec.id === undefined ? String(ordinal) : typeof rec.id === 'string' || typeof rec.id === 'number' ? String(rec.id) : null;
-    if (id === null) {
-      bad(new DataError('bad-field', 'expected `id` to be a string or a number', { file, line }));
-      return null;
-    }
-    if (typeof rec.tree !== 'string') {
-      bad(new DataError('bad-field', 'expected `tree` to be a string holding one bracketed tree', { file, line, id }));
-      return null;
-    }
-    try {
-      return { id, ordinal, file, line, column: 1, tree: parseTree(rec.tree, options.vocab, { builder }) };
-    } catch (e) {
-      if (!(e instanceof DataError)) throw e;
-      bad(new DataError(e.code, `in the \`tree\` string at its line ${e.line}, column ${e.column}: ${e.reason}`, { file, line, id }));
-      return null;
-    }
-  };
-
-  for await (const piece of pieces) {
-    if (format === 'auto') {
-      const m = /\S/.exec(piece.text);
-      if (!m) continue;
-      format = m[0] === '{' ? 'jsonl' : 'brackets';
-    }
-    if (format === 'brackets') {
-      badLines.push(...piece.bad);
-      items.length = 0;
-      splitter.push(piece.text, items);
-      yield* fromBrackets(items);
-    } else {
-      const badAt = new Map(piece.bad.map((b) => [b.line, b]));
-      const text = partial + piece.text;
-      let line = piece.line;
-      let s = 0;
-      for (let e = text.indexOf('\n'); e >= 0; e = text.indexOf('\n', s)) {
-        const l = text.slice(s, e);
-        s = e + 1;
-        const b = badAt.get(line);
-        if (b) {
-          ordinal++;
-          bad(new DataError('invalid-utf8', b.reason, { file, line, column: b.column }));
-        } else if (l.trim().length > 0) {
-          const r = fromJsonLine(l, line);
-          if (r) yield r;
-        }
-        line++;
-      }
-      partial = text.slice(s);
-      jsonLine = line;
-    }
-  }
-  if (format === 'brackets') {
+    badLines.push(...piece.bad);
     items.length = 0;
-    splitter.end(items);
+    splitter.push(text, items);
     yield* fromBrackets(items);
-    for (const b of badLines.splice(0)) bad(new DataError('invalid-utf8', b.reason, { file, line: b.line, column: b.column }));
-  } else if (format === 'jsonl' && partial.trim().length > 0) {
-    const r = fromJsonLine(partial, jsonLine);
-    if (r) yield r;
+  }
+  items.length = 0;
+  splitter.end(items);
+  yield* fromBrackets(items);
+  for (const b of badLines.splice(0)) bad(new DataError('invalid-utf8', b.reason, { file, line: b.line, column: b.column }));
+}
+
+function fromJsonLine(text: string, line: number, ordinal: number, file: string, options: ReadTreebankOptions, builder: TreeBuilder, bad: (e: DataError) => void): TreeRecord | null {
+  let value: unknown;
+  try {
+    value = JSON.parse(text);
+  } catch (e) {
+    bad(new DataError('bad-json', `expected a JSON object {"id", "tree"} on this line: ${(e as Error).message}`, { file, line }));
+    return null;
+  }
+  if (value === null || typeof value !== 'object' || Array.isArray(value)) {
+    bad(new DataError('bad-json', 'expected a JSON object {"id", "tree"} on this line', { file, line }));
+    return null;
+  }
+  const rec = value as Record<string, unknown>;
+  const rawId = Object.hasOwn(rec, 'id') ? rec.id : undefined;
+  const id = rawId === undefined ? String(ordinal) : typeof rawId === 'string' || (typeof rawId === 'number' && Number.isFinite(rawId)) ? String(rawId) : null;
+  if (id === null) {
+    bad(new DataError('bad-field', 'expected `id` to be a string or a number', { file, line }));
+    return null;
+  }
+  const tree = Object.hasOwn(rec, 'tree') ? rec.tree : undefined;
+  if (typeof tree !== 'string') {
+    bad(new DataError('bad-field', 'expected `tree` to be a string holding one bracketed tree', { file, line, id }));
+    return null;
+  }
+  try {
+    return { id, ordinal, file, line, column: 1, tree: parseTree(tree, options.vocab, { builder }) };
+  } catch (e) {
+    if (!(e instanceof DataError)) throw e;
+    bad(new DataError(e.code, `in the \`tree\` string at its line ${e.line}, column ${e.column}: ${e.reason}`, { file, line, id }));
+    return null;
   }
 }

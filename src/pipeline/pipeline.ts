@@ -9,6 +9,10 @@ import type { ScoringOptions } from '../core/parseval.js';
 import { checkOptions, type OptionValues } from '../features/options.js';
 import { TEMPLATES } from '../features/registry.js';
 import type { ConfigureContext, ConfiguredTemplate } from '../features/template.js';
+import type { EncodeOptions } from '../stages/encode-shard.js';
+import type { HashingOptions } from '../stages/hash-features.js';
+import type { ParseOptions } from '../stages/parse-candidates.js';
+import type { ShardLimits } from '../stages/write-shards.js';
 import { STAGES } from './stages.js';
 
 export const PIPELINE_FORMAT = 'sheaf-pipeline/1';
@@ -28,10 +32,12 @@ export interface PipelineConfig {
 export interface Pipeline {
   config: PipelineConfig;
   templates: ConfiguredTemplate[];
-  parse: { stripFunctionTags: boolean; dropEmpty: boolean; maxCandidates: number };
+  maxCandidates: number;
+  parse: ParseOptions;
   scoring: ScoringOptions;
-  hashing: { bits: number; seed: number; pseudoConstant: boolean; names: number };
-  shards: { sentencesPerShard: number; bytesPerShard: number };
+  hashing: HashingOptions;
+  encode: EncodeOptions;
+  shards: ShardLimits;
 }
 
 const list = (xs: Iterable<string>) => [...xs].map((x) => `\`${x}\``).join(', ');
@@ -81,14 +87,15 @@ export function buildPipeline(raw: unknown, name: string, context: ConfigureCont
   const opt = (id: string) => stages.find((s) => s.stage === id)!.options;
   const configured = templates.map((b) => TEMPLATES.get(b.template)!.configure(b.options, context));
   const scoring = opt('score-candidates.v1');
-  const hashing = opt('hash-features.v1');
+  const hashing = opt('hash-features.v2');
+  const encode = opt('encode-shard.v2');
   return {
     config: { format: PIPELINE_FORMAT, stages, templates },
     templates: configured,
+    maxCandidates: opt('read-nbest.v1').maxCandidates as number,
     parse: {
       stripFunctionTags: opt('parse-candidates.v1').stripFunctionTags as boolean,
       dropEmpty: opt('parse-candidates.v1').dropEmpty as boolean,
-      maxCandidates: opt('read-nbest.v1').maxCandidates as number,
     },
     scoring: {
       punctuation: scoring.punctuation as string[],
@@ -99,8 +106,12 @@ export function buildPipeline(raw: unknown, name: string, context: ConfigureCont
     hashing: {
       bits: hashing.bits as number,
       seed: hashing.seed as number,
-      pseudoConstant: hashing.pseudoConstant as boolean,
+      dropUniform: hashing.dropUniform as boolean,
       names: hashing.names as number,
+    },
+    encode: {
+      compression: encode.compression as EncodeOptions['compression'],
+      level: encode.level as number,
     },
     shards: {
       sentencesPerShard: opt('write-shards.v1').sentencesPerShard as number,
@@ -122,5 +133,33 @@ function checkTemplates(raw: unknown, where: string): TemplateBlock[] {
     if (seen.has(tpl.id)) throw new UsageError(`${at}: template \`${tpl.id}\` is listed twice`);
     seen.add(tpl.id);
     return { template: tpl.id, options: checkOptions(b, tpl.options, `${at} (${tpl.id})`, ['template']) };
+  });
+}
+
+/**
+ * The pipeline file that a resolved config stands for (every option written
+ * out), so a worker can rebuild the same pipeline from the config alone.
+ */
+export function configAsFile(config: PipelineConfig): Record<string, unknown> {
+  return {
+    format: config.format,
+    stages: config.stages.map((s) => ({
+      stage: s.stage,
+      ...s.options,
+      ...(s.stage === 'extract-features.v1' ? { templates: config.templates.map((t) => ({ template: t.template, ...t.options })) } : {}),
+    })),
+  };
+}
+
+const utf8 = new TextDecoder();
+
+/** Rebuilds a validated pipeline from a resolved config and the bytes of the files it reads (workers get these, never paths). */
+export function rebuildPipeline(config: PipelineConfig, files: Readonly<Record<string, Uint8Array>>): Pipeline {
+  return buildPipeline(configAsFile(config), 'the pipeline config', {
+    readText(path) {
+      const b = Object.hasOwn(files, path) ? files[path] : undefined;
+      if (!b) throw new UsageError(`the pipeline config reads \`${path}\`, which was not handed over with it`);
+      return utf8.decode(b);
+    },
   });
 }

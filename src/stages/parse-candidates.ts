@@ -5,6 +5,18 @@ import { normaliseTree } from '../core/normalise.js';
 import { parseTree } from '../core/read-brackets.js';
 import type { Tree } from '../core/tree.js';
 import type { CandidateText } from '../records.js';
+import type { StageSpec } from './stage.js';
+
+export const parseCandidatesSpec: StageSpec = {
+  id: 'parse-candidates.v1',
+  summary: 'parse and normalise candidate trees',
+  needs: ['candidateTexts'],
+  adds: ['candidates'],
+  options: {
+    stripFunctionTags: { type: 'boolean', default: true, doc: 'NP-SBJ-1 → NP' },
+    dropEmpty: { type: 'boolean', default: true, doc: 'delete -NONE- elements and the constituents they leave empty' },
+  },
+};
 
 export interface ParseOptions {
   stripFunctionTags: boolean;

@@ -1,7 +1,21 @@
 /** Stage `score-candidates.v1`: PARSEVAL counts of each candidate against gold. */
 import { DataError } from '../core/errors.js';
-import { SentenceScorer, type BracketCounts, type ScoringOptions } from '../core/parseval.js';
+import { DEFAULT_SCORING, SentenceScorer, type BracketCounts, type ScoringOptions } from '../core/parseval.js';
 import type { Tree } from '../core/tree.js';
+import type { StageSpec } from './stage.js';
+
+export const scoreCandidatesSpec: StageSpec = {
+  id: 'score-candidates.v1',
+  summary: 'PARSEVAL bracket counts of each candidate against gold',
+  needs: ['gold', 'candidates'],
+  adds: ['counts'],
+  options: {
+    punctuation: { type: 'strings', default: DEFAULT_SCORING.punctuation, doc: 'POS tags (of the gold tree) whose words are deleted' },
+    equivalent: { type: 'string-groups', default: DEFAULT_SCORING.equivalent, doc: 'labels that count as one' },
+    rootLabels: { type: 'strings', default: DEFAULT_SCORING.rootLabels, doc: 'root labels that are not brackets' },
+    labeled: { type: 'boolean', default: true, doc: 'score labels (false: spans only)' },
+  },
+};
 
 export function scoreCandidates(options: ScoringOptions) {
   return (gold: Tree, candidates: readonly Tree[]): { gold: number; counts: BracketCounts[] } => {

@@ -20,6 +20,7 @@ export const ancestors: FeatureTemplate = {
   id: 'ancestors.v1',
   summary: 'local rules with the parent label, and with parent and grandparent labels',
   example: 'ancestors.v1 gp S VP NP CD NNS',
+  exampleTree: '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (CD two) (NNS crates)) (PP (TO to) (NP (DT the) (NN hut)))) (. .))',
   options: {
     grandparent: { type: 'boolean', default: true, doc: 'also fire rules with parent and grandparent labels' },
   },

@@ -1,7 +1,8 @@
 /**
  * `base-score.v1` — the base model's view of the candidate: its log score
  * (real-valued) and its rank bucket.
- * Keys: `base-score.v1 score` (value −41.2, say), `base-score.v1 rank 3-4`.
+ * Keys: `base-score.v1 score` (value −41.2, say), `base-score.v1 rank 0` (the
+ * base model's best), `base-score.v1 rank 3-4`.
  */
 import { piece } from '../../core/feature-sink.js';
 import type { FeatureTemplate } from '../template.js';
@@ -10,7 +11,8 @@ import { rankBucket } from '../pieces.js';
 export const baseScore: FeatureTemplate = {
   id: 'base-score.v1',
   summary: 'the base model\'s log score (real-valued) and rank bucket',
-  example: 'base-score.v1 rank 3-4',
+  example: 'base-score.v1 rank 0',
+  exampleTree: '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (CD two) (NNS crates)) (PP (TO to) (NP (DT the) (NN hut)))) (. .))',
   options: {
     score: { type: 'boolean', default: true, doc: 'fire the log score as a real value' },
     rank: { type: 'boolean', default: true, doc: 'fire the rank bucket' },

@@ -16,6 +16,7 @@ export const branching: FeatureTemplate = {
   id: 'branching.v1',
   summary: 'right-branching and depth measures of the whole tree (real-valued)',
   example: 'branching.v1 right-spine',
+  exampleTree: '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (CD two) (NNS crates)) (PP (TO to) (NP (DT the) (NN hut)))) (. .))',
   options: {
     measures: { type: 'strings', default: MEASURES, choices: MEASURES, doc: 'which measures to fire' },
     punctuation: PUNCTUATION_OPTION,

@@ -30,6 +30,7 @@ export const coordination: FeatureTemplate = {
   id: 'coordination.v1',
   summary: 'parallelism of adjacent conjuncts: label, child labels, length and depth differences',
   example: 'coordination.v1 kids NP same',
+  exampleTree: '(S (NP (DT the) (NN warden)) (VP (VBD checked) (NP (NP (DT the) (NNS stoves)) (CC and) (NP (DT the) (NNS lamps)))) (. .))',
   options: {
     coordinators: { type: 'strings', default: ['CC', 'CONJP'], doc: 'labels of coordinators' },
     punctuation: PUNCTUATION_OPTION,

@@ -19,6 +19,7 @@ export const headDeps: FeatureTemplate = {
   id: 'head-deps.v1',
   summary: 'head-word dependencies between a head child and each sibling, with tag back-offs',
   example: 'head-deps.v1 ww VP VBD NP R carried crates',
+  exampleTree: '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (CD two) (NNS crates)) (PP (TO to) (NP (DT the) (NN hut)))) (. .))',
   options: {
     kinds: { type: 'strings', default: KINDS, choices: KINDS, doc: 'ww: words; tt: tags; wt / tw: head word or tag with dependent tag or word' },
     punctuation: PUNCTUATION_OPTION,

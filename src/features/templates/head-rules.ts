@@ -12,6 +12,7 @@ export const headRules: FeatureTemplate = {
   id: 'head-rules.v1',
   summary: 'local rules with the head child marked, lexicalised with the head word and with its tag',
   example: 'head-rules.v1 w mended VP * VBD NP',
+  exampleTree: '(S (NP (DT the) (NN warden)) (VP (VBD mended) (NP (DT the) (NN stove))) (. .))',
   options: {
     words: { type: 'boolean', default: true, doc: 'fire the head-word version' },
     tags: { type: 'boolean', default: true, doc: 'fire the head-tag version' },

@@ -41,6 +41,7 @@ export const lexicon: FeatureTemplate = {
   id: 'lexicon.v1',
   summary: 'lexicon classes of argument heads: verb–object, preposition–object, preposition–attachment site',
   example: 'lexicon.v1 verb-obj mended appliance',
+  exampleTree: '(S (NP (DT the) (NN warden)) (VP (VBD mended) (NP (DT the) (NN stove))) (. .))',
   options: {
     path: { type: 'string', default: null, doc: 'the lexicon TSV (relative to the pipeline file)' },
     lowercase: { type: 'boolean', default: true, doc: 'look words up in lower case' },

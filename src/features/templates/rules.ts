@@ -12,6 +12,7 @@ export const rules: FeatureTemplate = {
   id: 'rules.v1',
   summary: 'local rules: a constituent\'s label and its children\'s labels',
   example: 'rules.v1 VP VBD NP PP',
+  exampleTree: '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (CD two) (NNS crates)) (PP (TO to) (NP (DT the) (NN hut)))) (. .))',
   options: {
     lexical: { type: 'boolean', default: false, doc: 'also fire preterminal → word rules' },
   },

@@ -14,6 +14,7 @@ export const siblings: FeatureTemplate = {
   id: 'siblings.v1',
   summary: 'n-grams of adjacent child labels in a local tree, by side of the head',
   example: 'siblings.v1 NP H JJ * NN',
+  exampleTree: '(S (NP (DT the) (JJ old) (NN kettle)) (VP (VBD leaked)) (. .))',
   options: {
     n: { type: 'integer', default: 2, min: 2, max: 3, doc: 'n-gram length' },
   },

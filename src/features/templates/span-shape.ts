@@ -2,7 +2,8 @@
  * `span-shape.v1` — constituent label × length bucket, and × position in
  * the sentence (`all`, `initial`, `final`, `inner`).
  * Keys: `span-shape.v1 len PP 3`, `span-shape.v1 pos SBAR 7-9 final`
- * ("… , because the stove smoked .").
+ * ("the stove smoked because the wet firewood lay in the shed": `final`
+ * means the span ends the sentence, punctuation included).
  */
 import { piece } from '../../core/feature-sink.js';
 import type { FeatureTemplate } from '../template.js';
@@ -12,6 +13,7 @@ export const spanShape: FeatureTemplate = {
   id: 'span-shape.v1',
   summary: 'constituent label by span length bucket, and by position in the sentence',
   example: 'span-shape.v1 pos SBAR 7-9 final',
+  exampleTree: '(S (NP (DT the) (NN stove)) (VP (VBD smoked) (SBAR (IN because) (S (NP (DT the) (JJ wet) (NN firewood)) (VP (VBD lay) (PP (IN in) (NP (DT the) (NN shed))))))))',
   options: {
     position: { type: 'boolean', default: true, doc: 'also fire label × length × position' },
   },

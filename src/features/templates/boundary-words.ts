@@ -1,27 +1,29 @@
 /**
- * `edges.v1` — the words and tags at the edges of a constituent, and the
- * words just outside it (`<s>` / `</s>` at the sentence ends).
- * Keys: `edges.v1 first-word NP the`, `edges.v1 last-tag NP NNS`,
- * `edges.v1 after-word PP to` ("[two crates] to the hut").
- * `before-tag` / `after-tag` are off by default: they read tags outside the
+ * `boundary-words.v1` — the words and tags at a constituent's boundaries:
+ * its first and last word and tag, and the words just outside it (`<s>` /
+ * `</s>` at the sentence ends).
+ * Keys: `boundary-words.v1 first-word NP the`, `boundary-words.v1 last-tag NP NNS`,
+ * `boundary-words.v1 word-after NP to` ("[two crates] to the hut").
+ * `tag-before` / `tag-after` are off by default: they read tags outside the
  * constituent, which makes the feature depend on more than its subtree.
  */
 import { piece } from '../../core/feature-sink.js';
 import type { FeatureTemplate } from '../template.js';
 import { BOS, EOS, labelBytes, tagBytes, wordBytes } from '../pieces.js';
 
-const PARTS = ['first-word', 'last-word', 'first-tag', 'last-tag', 'before-word', 'after-word', 'before-tag', 'after-tag'] as const;
+const PARTS = ['first-word', 'last-word', 'first-tag', 'last-tag', 'word-before', 'word-after', 'tag-before', 'tag-after'] as const;
 
-export const edges: FeatureTemplate = {
-  id: 'edges.v1',
-  summary: 'edge words and tags of a constituent and the words just outside it',
-  example: 'edges.v1 first-word NP the',
+export const boundaryWords: FeatureTemplate = {
+  id: 'boundary-words.v1',
+  summary: 'first and last word and tag of a constituent, and the words just outside it',
+  example: 'boundary-words.v1 first-word NP the',
+  exampleTree: '(S (NP (DT the) (NN porter)) (VP (VBD carried) (NP (CD two) (NNS crates)) (PP (TO to) (NP (DT the) (NN hut)))) (. .))',
   options: {
-    parts: { type: 'strings', default: PARTS.slice(0, 6), choices: PARTS, doc: 'which edges to fire' },
+    parts: { type: 'strings', default: PARTS.slice(0, 6), choices: PARTS, doc: 'which boundary words and tags to fire' },
   },
   configure(options) {
     const on = PARTS.map((p) => (options.parts as string[]).includes(p));
-    const prefixes = PARTS.map((p) => piece(`edges.v1 ${p}`));
+    const prefixes = PARTS.map((p) => piece(`boundary-words.v1 ${p}`));
     return {
       local: !on[6] && !on[7],
       node(v, i, sink) {

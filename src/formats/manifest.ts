@@ -1,0 +1,135 @@
+/**
+ * The shard directory's `manifest.json` (format `sheaf-shards/2`), typed and
+ * checked. Written last by `prepare` (and `merge`): a directory with a
+ * manifest is complete. Readers check it before trusting it: shard and count
+ * files must be plain names inside the directory, totals must reconcile.
+ *
+ * Pure: no node: imports.
+ */
+import { UsageError } from '../core/errors.js';
+import type { ModelIdentity } from '../records.js';
+import { SHARD_FORMAT } from './shard-record.js';
+
+export { SHARD_FORMAT };
+
+export interface InputDigest {
+  path: string;
+  bytes: number | null;
+  sha256: string;
+}
+
+export interface NbestInput extends InputDigest {
+  /** Records read from this dump (input positions are numbered across dumps in order). */
+  records: number;
+}
+
+export interface ShardEntry {
+  file: string;
+  sentences: number;
+  candidates: number;
+  /** Bytes of the shard file as written (compressed when compression is on). */
+  bytes: number;
+  /** Bytes of its MessagePack records before compression. */
+  rawBytes: number;
+  sha256: string;
+  counts: string;
+  countsSha256: string;
+  /** Per template id: [distinct buckets fired summed over sentences, of which vary]. */
+  templates: Record<string, [number, number]>;
+}
+
+export interface FoldStats {
+  fold: number | null;
+  sentences: number;
+  sources: (ModelIdentity & { sentences: number })[];
+}
+
+export interface Totals {
+  /** Input records read from the dumps (= written + rejected). */
+  read: number;
+  written: number;
+  rejected: number;
+  candidates: number;
+  noCandidates: number;
+  goldTrees: number;
+  goldRejected: number;
+  goldWithoutNbest: number;
+}
+
+export interface NamesSummary {
+  file: string;
+  perBucket: number;
+  keys: number;
+  buckets: number;
+  collisionRate: number;
+  expectedRate: number;
+}
+
+export interface ShardManifest {
+  format: typeof SHARD_FORMAT;
+  tool: { name: 'sheaf'; version: string };
+  pipeline: { digest: string; config: unknown };
+  hashing: { bits: number; seed: number; rule: string; dropUniform: boolean };
+  compression: { method: 'gzip' | 'none'; level: number; unit: 'sentence' };
+  /** The record layout, in words (the README documents the bytes). */
+  record: Record<string, string>;
+  inputs: { gold: InputDigest; nbest: NbestInput[]; plan: { path: string; sha256: string } | null };
+  folds: FoldStats[];
+  shards: ShardEntry[];
+  totals: Totals;
+  rejects: { file: string; count: number };
+  names: NamesSummary | null;
+}
+
+/** Record layout written into every manifest (the bytes are in formats/shard-record.ts). */
+export const RECORD_LAYOUT: Record<string, string> = {
+  sentence: 'map {id, pos, fold, gold, len, flag, ref, cands}',
+  ref: 'map {idx, val, dtype} | nil: the reference candidate (best-ranked kept) at the stored buckets',
+  candidate: 'map {score, rank, matched, test, idx, val, dtype}: its vector minus the reference\'s',
+  idx: 'bin: uint32 little-endian, ascending',
+  val: 'bin: little-endian values of numpy type `dtype` (<i1, <i2, <i4, <f4 or <f8)',
+};
+
+const SHARD_FILE = /^shard-\d{5}\.msgpack(\.gz)?$/;
+const COUNTS_FILE = /^shard-\d{5}\.counts\.msgpack$/;
+
+/** Parses and checks manifest.json text of the shard directory `dir`. */
+export function parseManifest(text: string, dir: string): ShardManifest {
+  const fail = (why: string): never => {
+    throw new UsageError(`\`${dir}\` is not a usable shard directory: manifest.json ${why}`);
+  };
+  let raw: unknown;
+  try {
+    raw = JSON.parse(text);
+  } catch (e) {
+    return fail(`is not valid JSON (${(e as Error).message}); run \`sheaf prepare\` again to rewrite it`);
+  }
+  if (raw === null || typeof raw !== 'object' || Array.isArray(raw)) return fail('is not a JSON object');
+  const m = raw as Record<string, unknown>;
+  if (m.format !== SHARD_FORMAT) {
+    return fail(`says format ${JSON.stringify(m.format)}; this sheaf reads \`${SHARD_FORMAT}\` (run \`sheaf prepare\` again to rewrite shards of an older format)`);
+  }
+  const h = m.hashing as Record<string, unknown> | undefined;
+  if (!h || !Number.isInteger(h.bits) || (h.bits as number) < 1 || (h.bits as number) > 31) return fail('has no valid `hashing.bits`');
+  if (!Array.isArray(m.shards)) return fail('has no `shards` list');
+  const seen = new Set<string>();
+  for (const [k, s] of (m.shards as unknown[]).entries()) {
+    const e = s as Record<string, unknown>;
+    if (!e || typeof e.file !== 'string' || !SHARD_FILE.test(e.file)) return fail(`names shard ${k} ${JSON.stringify(e?.file)}: expected a plain name like \`shard-00000.msgpack.gz\` inside the directory`);
+    if (typeof e.counts !== 'string' || !COUNTS_FILE.test(e.counts)) return fail(`names count file ${JSON.stringify(e.counts)} for shard ${k}: expected a plain name like \`shard-00000.counts.msgpack\``);
+    if (seen.has(e.file)) return fail(`names \`${e.file}\` twice`);
+    seen.add(e.file);
+    for (const key of ['sentences', 'candidates', 'bytes']) if (!Number.isSafeInteger(e[key]) || (e[key] as number) < 0) return fail(`shard ${k}: expected \`${key}\` to be a count`);
+  }
+  const t = m.totals as Record<string, unknown> | undefined;
+  if (!t || ['read', 'written', 'rejected'].some((k) => !Number.isSafeInteger(t[k]))) return fail('has no valid `totals`');
+  if ((t.written as number) + (t.rejected as number) !== t.read) return fail(`totals do not reconcile (read ${t.read} ≠ written ${t.written} + rejected ${t.rejected})`);
+  const written = (m.shards as ShardEntry[]).reduce((a, s) => a + s.sentences, 0);
+  if (written !== t.written) return fail(`lists shards holding ${written} sentences but says ${t.written} were written`);
+  return raw as ShardManifest;
+}
+
+/** The manifest as JSON text. */
+export function formatManifest(m: ShardManifest): string {
+  return JSON.stringify(m, null, 2) + '\n';
+}

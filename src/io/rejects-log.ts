@@ -1,0 +1,48 @@
+/**
+ * `rejects.jsonl`: one line per refused input record (file, line, column,
+ * id, code, reason), written as `rejects.jsonl.tmp` and renamed when the run
+ * completes. Its length is journaled with every shard, so a resumed run cuts
+ * it back to what matches the last complete shard.
+ */
+import { closeSync, existsSync, openSync, renameSync, statSync, truncateSync, writeSync } from 'node:fs';
+import { join } from 'node:path';
+import type { RejectRecord } from '../records.js';
+
+export const REJECTS = 'rejects.jsonl';
+
+export function rejectLine(r: RejectRecord): string {
+  return JSON.stringify({ file: r.file, line: r.line, column: r.column, id: r.id, code: r.code, reason: r.reason }) + '\n';
+}
+
+export class RejectsLog {
+  private readonly fd: number;
+  private readonly tmp: string;
+
+  /** Opens `dir/rejects.jsonl.tmp`, cut back to `keepBytes` (0: a fresh log). */
+  constructor(private readonly dir: string, keepBytes: number) {
+    this.tmp = join(dir, `${REJECTS}.tmp`);
+    if (!existsSync(this.tmp)) closeSync(openSync(this.tmp, 'w'));
+    truncateSync(this.tmp, keepBytes);
+    this.fd = openSync(this.tmp, 'a');
+  }
+
+  write(r: RejectRecord): void {
+    writeSync(this.fd, Buffer.from(rejectLine(r), 'utf8'));
+  }
+
+  /** Bytes written so far. */
+  get bytes(): number {
+    return statSync(this.tmp).size;
+  }
+
+  /** Closes the log and gives it its final name. */
+  finish(): void {
+    closeSync(this.fd);
+    renameSync(this.tmp, join(this.dir, REJECTS));
+  }
+
+  /** Closes the log, leaving it under its temporary name (for a later resume). */
+  close(): void {
+    closeSync(this.fd);
+  }
+}

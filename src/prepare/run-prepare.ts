@@ -1,0 +1,314 @@
+/**
+ * `sheaf prepare`, orchestrated: n-best dumps + gold treebank + pipeline →
+ * shard directory.
+ *
+ * Main thread: read dumps in order, join each list with its gold tree and
+ * check its provenance (stages/align-gold.ts), batch, and write results in
+ * input order. Workers: the per-sentence chain (sentence-chain.ts). Every
+ * input record ends as a written sentence or a line of rejects.jsonl; the
+ * totals are checked to reconcile before the manifest is written.
+ */
+import { createHash, type Hash } from 'node:crypto';
+import { appendFileSync, existsSync, mkdirSync, readFileSync, statSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
+import { join } from 'node:path';
+import { DataError, UsageError } from '../core/errors.js';
+import { bucketOf, murmur3String } from '../core/murmur3.js';
+import { NameBook } from '../core/name-book.js';
+import type { FoldPlan } from '../formats/fold-plan.js';
+import { emptyState, headerLine, lastState, shardLine, type WriterState } from '../formats/journal.js';
+import { formatManifest, RECORD_LAYOUT, SHARD_FORMAT, type NamesSummary, type ShardManifest, type Totals } from '../formats/manifest.js';
+import { formatNames } from '../formats/names-file.js';
+import { fileSha256, removeIfExists, writeFileAtomic } from '../io/files.js';
+import { loadFoldPlan } from '../io/fold-plan-file.js';
+import { GoldIndex } from '../io/gold-index.js';
+import { loadPipeline, type LoadedPipeline } from '../io/load-pipeline.js';
+import { createProgress } from '../io/progress.js';
+import { readNbest } from '../io/read-nbest.js';
+import { MANIFEST, readManifest } from '../io/read-shards.js';
+import { RejectsLog, REJECTS } from '../io/rejects-log.js';
+import { ShardWriter, type EncodedSentence } from '../io/shard-writer.js';
+import { OrderedBatches, OrderedPool } from '../pool/ordered-pool.js';
+import type { ModelIdentity, RejectRecord, SentenceJob, SentenceResult } from '../records.js';
+import { HASH_RULE } from '../stages/hash-features.js';
+import { joinVerdict, type PlannedFold } from '../stages/align-gold.js';
+import { TOOL_VERSION } from '../version.js';
+import type { SentenceWorkerInit } from './sentence-worker.js';
+import { clearPrepareOutput, JOURNAL } from './output-dir.js';
+
+export interface PrepareOptions {
+  gold: string;
+  nbest: string[];
+  pipeline: string;
+  out: string;
+  plan?: string;
+  workers?: number;
+  strict?: boolean;
+  quiet?: boolean;
+  /** Sentences per batch sent to a worker. */
+  batch?: number;
+  /** Test hook: behave as if killed once this many shards are complete. */
+  stopAfterShards?: number;
+}
+
+/** Thrown by the stopAfterShards test hook. */
+export class SimulatedStop extends Error {}
+
+export interface PrepareSummary extends Totals {
+  out: string;
+  upToDate: boolean;
+  /** Complete shards found and kept from an interrupted run (0 for a fresh one). */
+  resumedShards: number;
+  shards: number;
+  seconds: number;
+}
+
+interface InputInfo {
+  path: string;
+  bytes: number | null;
+  mtimeMs: number | null;
+}
+
+function inputInfo(path: string): InputInfo {
+  if (path === '-') return { path, bytes: null, mtimeMs: null };
+  let s;
+  try {
+    s = statSync(path);
+  } catch (e) {
+    throw new UsageError(`cannot read \`${path}\`: no such file (expected a path to an existing file, or \`-\` for stdin)`, { cause: e });
+  }
+  if (!s.isFile()) throw new UsageError(`expected \`${path}\` to be a file`);
+  return { path, bytes: s.size, mtimeMs: s.mtimeMs };
+}
+
+/** Where the plan puts each gold sentence. */
+function plannedFolds(plan: FoldPlan | null, gold: GoldIndex): Map<number, ModelIdentity | null> {
+  const models = new Map<number, ModelIdentity | null>();
+  if (!plan) return models;
+  for (const f of plan.folds) {
+    models.set(f.fold, f.model);
+    for (const id of f.ids) {
+      const k = gold.ordinal(id);
+      if (k >= 0) gold.setFold(k, f.fold);
+    }
+  }
+  return models;
+}
+
+type Item =
+  | { kind: 'reject'; reject: RejectRecord; seq: number }
+  | { kind: 'job'; seq: number; id: string; file: string; line: number | null; fold: number | null; source: ModelIdentity | null };
+
+export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
+  const started = Date.now();
+  const workers = o.workers ?? availableParallelism();
+  if (!Number.isInteger(workers) || workers < 0 || workers > 256) throw new UsageError(`expected \`--workers\` to be an integer from 0 to 256, got \`${o.workers}\``);
+  if (o.nbest.length === 0) throw new UsageError('expected at least one n-best dump after `--nbest`');
+  const batchSize = o.batch ?? 16;
+  // Validate everything before reading any data.
+  const pipeline = loadPipeline(o.pipeline);
+  const planned = o.plan ? loadFoldPlan(o.plan) : null;
+  const plan = planned?.plan ?? null;
+  const inputs = { gold: inputInfo(o.gold), nbest: o.nbest.map(inputInfo), plan: planned ? inputInfo(planned.file) : null };
+  mkdirSync(o.out, { recursive: true });
+  const usesStdin = [o.gold, ...o.nbest].includes('-');
+  const progress = createProgress({ quiet: o.quiet ?? false, label: 'sheaf prepare', totalBytes: usesStdin ? null : inputs.nbest.reduce((a, i) => a + (i.bytes ?? 0), 0) });
+
+  // A complete output with the same inputs and config: nothing to do.
+  const done = usesStdin ? null : upToDate(o, pipeline, planned?.file ?? null);
+  if (done) {
+    progress.done(`sheaf prepare: ${o.out} is up to date (same inputs and pipeline); nothing to do`);
+    return { out: o.out, upToDate: true, resumedShards: 0, shards: done.shards.length, ...done.totals, seconds: (Date.now() - started) / 1000 };
+  }
+
+  // Resume from the journal when the inputs and config are unchanged.
+  const header = { format: SHARD_FORMAT, pipeline: pipeline.digest, inputs };
+  // A run that keeps names restarts rather than resumes: names come from the sentences it processes.
+  const keepsNames = pipeline.hashing.names > 0;
+  let state: WriterState | null = null;
+  if (!usesStdin && !keepsNames && existsSync(join(o.out, JOURNAL))) {
+    state = lastState(readFileSync(join(o.out, JOURNAL), 'utf8'), header);
+    if (state && !state.shards.every((s) => existsSync(join(o.out, s.file)) && fileSha256(join(o.out, s.file)) === s.sha256)) state = null;
+  }
+  const resuming = state !== null;
+  if (!state) {
+    clearPrepareOutput(o.out);
+    state = emptyState();
+  } else removeIfExists(join(o.out, `${MANIFEST}.tmp`));
+  const resumedShards = state.shards.length;
+
+  const rejects = new RejectsLog(o.out, state.rejectsBytes);
+  const templateIds = pipeline.config.templates.map((t) => t.template);
+  const writer = new ShardWriter(o.out, { limits: pipeline.shards, bits: pipeline.hashing.bits, compressed: pipeline.encode.compression === 'gzip', templates: templateIds }, state, (k, st) => {
+    st.rejectsBytes = rejects.bytes;
+    appendFileSync(join(o.out, JOURNAL), shardLine(k, st));
+  });
+
+  const digests = new Map<string, Hash>();
+  const tapFor = (key: string) => {
+    const h = createHash('sha256');
+    digests.set(key, h);
+    return (c: Buffer) => h.update(c);
+  };
+  let goldRejected = 0;
+  const strictStop = (r: RejectRecord): never => {
+    throw new DataError(r.code, `${r.reason} (stopped by --strict)`, { file: r.file, line: r.line ?? undefined, id: r.id ?? undefined });
+  };
+  const spill = join(o.out, '.gold-spill.tmp');
+  let gold: GoldIndex | null = null;
+  let pool: OrderedPool<SentenceJob, SentenceResult> | null = null;
+  let seq = 0;
+  const perFile: number[] = [];
+  let namesSummary: NamesSummary | null = null;
+  try {
+    gold = await GoldIndex.build(o.gold, spill, (r) => {
+      goldRejected++;
+      if (o.strict) strictStop(r);
+      if (!resuming) rejects.write(r);
+    }, tapFor(`gold:${o.gold}`));
+    if (!resuming) {
+      state.rejectsBytes = rejects.bytes;
+      writeFileAtomic(join(o.out, JOURNAL), headerLine(header, state));
+    }
+    const models = plannedFolds(plan, gold);
+    const init: SentenceWorkerInit = { config: pipeline.config, files: pipeline.files };
+    pool = await OrderedPool.start<SentenceJob, SentenceResult>({ size: workers, module: new URL('./sentence-worker.js', import.meta.url), init });
+    let bytesDone = 0;
+    const consume = (item: Item, res: SentenceResult | undefined) => {
+      if (item.kind === 'reject') {
+        rejects.write(item.reject);
+        writer.rejected(item.seq + 1);
+      } else if (res && 'bytes' in res) {
+        writer.sentence(res as EncodedSentence, item.fold, item.source, item.seq + 1);
+        if (o.stopAfterShards !== undefined && state!.shards.length >= o.stopAfterShards) throw new SimulatedStop('stopped by the test hook');
+      } else if (res) {
+        const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, code: res.code, reason: res.reason };
+        if (o.strict) strictStop(r);
+        rejects.write(r);
+        writer.rejected(item.seq + 1);
+      }
+      progress.update({ sentences: state!.written + state!.rejected, candidates: state!.candidates, bytesDone });
+    };
+    const batches = new OrderedBatches<Item, SentenceJob, SentenceResult>(pool, { batchSize, maxInFlight: Math.max(2, pool.size * 3) }, consume);
+    const addReject = async (r: RejectRecord) => {
+      if (o.strict) strictStop(r);
+      await batches.push({ kind: 'reject', reject: r, seq });
+    };
+
+    for (const file of o.nbest) {
+      const tap = tapFor(`nbest:${file}`);
+      const before = seq;
+      for await (const item of readNbest(file, { maxCandidates: pipeline.maxCandidates, tap: (c) => { tap(c); bytesDone += c.length; } })) {
+        const skip = seq < state.consumed;
+        if ('reject' in item) {
+          if (!skip) await addReject(item.reject);
+          seq++;
+          continue;
+        }
+        const rec = item.record;
+        const k = gold.ordinal(rec.id);
+        const firstSight = k >= 0 && gold.markSeen(k);
+        if (skip) {
+          seq++;
+          continue;
+        }
+        const line = rec.line > 0 ? rec.line : null;
+        const where = rec.line > 0 ? '' : ` (array element ${rec.index})`;
+        const fold = k >= 0 ? gold.fold(k) : -1;
+        const plannedFold: PlannedFold | undefined | null = plan ? (fold >= 0 ? { fold, model: models.get(fold) ?? null } : undefined) : null;
+        const refusal = joinVerdict(rec.id, k >= 0, firstSight, plannedFold, rec.fold, rec.source);
+        if (refusal) {
+          await addReject({ file, line, column: null, id: rec.id, code: refusal.code, reason: refusal.reason + where });
+        } else {
+          await batches.push(
+            { kind: 'job', seq, id: rec.id, file, line, fold: rec.fold, source: rec.source },
+            { pos: seq, id: rec.id, fold: rec.fold, gold: gold.tree(k), candidates: rec.candidates },
+          );
+        }
+        seq++;
+      }
+      perFile.push(seq - before);
+    }
+    await batches.finish();
+    if (keepsNames) namesSummary = writeNames(o.out, (await pool.collect()).flat() as string[], pipeline.hashing);
+  } catch (e) {
+    rejects.close();
+    throw e;
+  } finally {
+    await pool?.close();
+    gold?.close();
+    removeIfExists(spill);
+  }
+  writer.close();
+  rejects.finish();
+
+  const read = seq;
+  if (state.written + state.rejected !== read) {
+    throw new Error(`totals do not reconcile: read ${read}, written ${state.written}, rejected ${state.rejected}`);
+  }
+  const digestOf = (key: string) => `sha256:${digests.get(key)!.digest('hex')}`;
+  const totals: Totals = {
+    read,
+    written: state.written,
+    rejected: state.rejected,
+    candidates: state.candidates,
+    noCandidates: state.noCandidates,
+    goldTrees: gold!.size,
+    goldRejected,
+    goldWithoutNbest: gold!.unseen(),
+  };
+  const manifest: ShardManifest = {
+    format: SHARD_FORMAT,
+    tool: { name: 'sheaf', version: TOOL_VERSION },
+    pipeline: { digest: pipeline.digest, config: pipeline.config },
+    hashing: { bits: pipeline.hashing.bits, seed: pipeline.hashing.seed, rule: HASH_RULE, dropUniform: pipeline.hashing.dropUniform },
+    compression: { method: pipeline.encode.compression, level: pipeline.encode.level, unit: 'sentence' },
+    record: RECORD_LAYOUT,
+    inputs: {
+      gold: { path: o.gold, bytes: inputs.gold.bytes, sha256: digestOf(`gold:${o.gold}`) },
+      nbest: o.nbest.map((f, k) => ({ path: f, bytes: inputs.nbest[k].bytes, sha256: digestOf(`nbest:${f}`), records: perFile[k] })),
+      plan: planned ? { path: planned.file, sha256: fileSha256(planned.file) } : null,
+    },
+    folds: state.folds,
+    shards: state.shards,
+    totals,
+    rejects: { file: REJECTS, count: state.rejected + goldRejected },
+    names: namesSummary,
+  };
+  writeFileAtomic(join(o.out, MANIFEST), formatManifest(manifest));
+  removeIfExists(join(o.out, JOURNAL));
+  const summary: PrepareSummary = { out: o.out, upToDate: false, resumedShards, shards: state.shards.length, ...totals, seconds: (Date.now() - started) / 1000 };
+  const n = (x: number) => x.toLocaleString('en-US');
+  progress.done(`sheaf prepare: read ${n(read)} sentences: wrote ${n(state.written)} (${n(state.candidates)} candidates) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
+  return summary;
+}
+
+/** The manifest of a complete output made from the same inputs and pipeline, or null. */
+function upToDate(o: PrepareOptions, pipeline: LoadedPipeline, planFile: string | null): ShardManifest | null {
+  if (!existsSync(join(o.out, MANIFEST))) return null;
+  let m: ShardManifest;
+  try {
+    m = readManifest(o.out);
+  } catch {
+    return null;
+  }
+  const same = m.pipeline.digest === pipeline.digest
+    && m.inputs.gold.sha256 === fileSha256(o.gold)
+    && JSON.stringify(m.inputs.nbest.map((x) => x.sha256)) === JSON.stringify(o.nbest.map(fileSha256))
+    && (m.inputs.plan?.sha256 ?? null) === (planFile ? fileSha256(planFile) : null)
+    && m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes);
+  return same ? m : null;
+}
+
+/**
+ * names.json: for each occupied bucket, the smallest few canonical keys seen
+ * (deterministic whatever the worker count), and the collision rate against
+ * the expected N/(2m).
+ */
+function writeNames(dir: string, keys: string[], hashing: { bits: number; seed: number; names: number }): NamesSummary {
+  const book = new NameBook(hashing.names);
+  book.merge(keys, (k) => bucketOf(murmur3String(k, hashing.seed), hashing.bits));
+  const c = book.collisions();
+  writeFileAtomic(join(dir, 'names.json'), formatNames({ bits: hashing.bits, seed: hashing.seed, perBucket: hashing.names, names: book.entries() }));
+  return { file: 'names.json', perBucket: hashing.names, keys: c.keys, buckets: c.buckets, collisionRate: c.rate, expectedRate: c.keys / (2 * 2 ** hashing.bits) };
+}

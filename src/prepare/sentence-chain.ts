@@ -1,0 +1,79 @@
+/**
+ * The per-sentence chain of `prepare`, in two parts:
+ * - gold-free: parse candidates → extract + hash features (as differences
+ *   from the reference candidate) — what re-ranking new lists also needs;
+ * - scoring: parse the gold tree → PARSEVAL counts of every candidate;
+ * then encode (+ compress) the shard record. Pure apart from the pipeline it
+ * is built from: no IO, no state across sentences except caches that do not
+ * change the output.
+ */
+import { DataError } from '../core/errors.js';
+import { createVocabulary, type Vocabulary } from '../core/interner.js';
+import type { Tree } from '../core/tree.js';
+import type { SentenceVectors } from '../features/extract-vectors.js';
+import type { Pipeline } from '../pipeline/pipeline.js';
+import type { CandidateText, SentenceJob, SentenceResult } from '../records.js';
+import { encodeShard } from '../stages/encode-shard.js';
+import { extractFeatures } from '../stages/extract-features.js';
+import { parseCandidates, parseNormalised } from '../stages/parse-candidates.js';
+import { scoreCandidates } from '../stages/score-candidates.js';
+
+/** parse → extract → hash, for one list: no gold needed. */
+export function createFeaturiser(pipeline: Pipeline) {
+  const parse = parseCandidates(pipeline.parse);
+  const extractor = extractFeatures(pipeline.templates, pipeline.hashing);
+  return {
+    extractor,
+    run(candidates: readonly CandidateText[], vocab: Vocabulary): { trees: Tree[]; vectors: SentenceVectors } {
+      const trees = parse(candidates, vocab);
+      const vectors = extractor.sentence(trees.map((tree, rank) => ({ tree, score: candidates[rank].score, rank })));
+      return { trees, vectors };
+    },
+  };
+}
+
+export interface SentenceChain {
+  run(job: SentenceJob): SentenceResult;
+  /** Distinct canonical keys seen so far (only when the pipeline keeps names). */
+  seenKeys(): string[];
+}
+
+export function createSentenceChain(pipeline: Pipeline): SentenceChain {
+  // A fresh vocabulary now and then keeps interner memory bounded; ids never reach the output.
+  let vocab = createVocabulary();
+  let jobs = 0;
+  const featurise = createFeaturiser(pipeline);
+  const score = scoreCandidates(pipeline.scoring);
+  const encode = encodeShard(pipeline.encode);
+
+  const run = (job: SentenceJob): SentenceResult => {
+    if (++jobs % 20000 === 0) vocab = createVocabulary();
+    try {
+      const gold = parseNormalised(job.gold, vocab, pipeline.parse, 'the gold tree');
+      const { trees, vectors } = featurise.run(job.candidates, vocab);
+      const { gold: goldCount, counts } = score(gold, trees);
+      const { bytes, rawBytes } = encode({
+        id: job.id,
+        pos: job.pos,
+        fold: job.fold,
+        gold: goldCount,
+        len: gold.wordNodes.length,
+        flag: trees.length === 0 ? 'no-candidates' : null,
+        ref: vectors.ref,
+        cands: trees.map((_, k) => ({
+          score: job.candidates[k].score,
+          rank: k,
+          matched: counts[k].matched,
+          test: counts[k].test,
+          idx: vectors.diffs[k].idx,
+          val: vectors.diffs[k].val,
+        })),
+      });
+      return { pos: job.pos, bytes, rawBytes, candidates: trees.length, varying: vectors.varying, templateCounts: vectors.templateCounts };
+    } catch (e) {
+      if (e instanceof DataError) return { pos: job.pos, code: e.code, reason: e.reason };
+      throw e;
+    }
+  };
+  return { run, seenKeys: () => [...(featurise.extractor.names?.keys ?? [])] };
+}
