@@ -15,7 +15,7 @@ import { createVocabulary, type Vocabulary } from '../src/core/interner.js';
 import { bucketOf, murmur3String, signOf } from '../src/core/murmur3.js';
 import { normaliseTree } from '../src/core/normalise.js';
 import { parseTree } from '../src/core/read-brackets.js';
-import { addVectors, type SparseVector } from '../src/core/sparse-vector.js';
+import { addVectors, splitParts, type SparseVector } from '../src/core/sparse-vector.js';
 import { writeTree } from '../src/core/write-brackets.js';
 import { seededRandom, syntheticCandidates } from '../src/demo/synthetic-nbest.js';
 import { directVectors } from '../src/features/direct-vectors.js';
@@ -54,7 +54,7 @@ function check(templates: ConfiguredTemplate[], cands: CandidateInput[], bits = 
   const direct = directVectors({ templates, bits, seed: 0, dropUniform }, cands);
   let entries = 0;
   cands.forEach((_, c) => {
-    const abs = addVectors(v.ref!, v.diffs[c]);
+    const abs = addVectors(splitParts(v.ref!), splitParts(v.diffs[c]));
     same(abs, direct[c], `candidate ${c}`);
     entries += v.diffs[c].idx.length;
   });

@@ -133,11 +133,18 @@ describe('sheaf prepare', () => {
         const o = ours[k];
         expect(Object.keys(t)).toEqual(['id', 'pos', 'fold', 'gold', 'len', 'flag', 'ref', 'cands']);
         expect([t.id, t.pos, t.fold, t.gold, t.len, t.flag]).toEqual([o.id, o.pos, o.fold, o.gold, o.len, o.flag]);
+        expect(Object.keys(t.ref)).toEqual(['idx', 'val', 'dtype', 'ridx', 'rval', 'rdtype']);
         expect(le(t.ref.idx, '<u4')).toEqual(Array.from(o.ref!.idx));
         expect(le(t.ref.val, t.ref.dtype)).toEqual(Array.from(o.ref!.val));
+        expect(le(t.ref.ridx, '<u4')).toEqual(Array.from(o.ref!.ridx));
+        expect(le(t.ref.rval, t.ref.rdtype)).toEqual(Array.from(o.ref!.rval));
         t.cands.forEach((c: any, j: number) => {
           const oc = o.cands[j];
-          expect(Object.keys(c)).toEqual(['score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype']);
+          expect(Object.keys(c)).toEqual(['score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype', 'ridx', 'rval', 'rdtype']);
+          expect(['<i1', '<i2', '<i4']).toContain(c.dtype);
+          expect(['<f4', '<f8']).toContain(c.rdtype);
+          expect(le(c.ridx, '<u4')).toEqual(Array.from(oc.diff.ridx));
+          expect(le(c.rval, c.rdtype)).toEqual(Array.from(oc.diff.rval));
           expect([c.score, c.rank, c.matched, c.test]).toEqual([oc.score, oc.rank, oc.matched, oc.test]);
           const idx = le(c.idx, '<u4');
           expect(idx).toEqual(Array.from(oc.diff.idx));
@@ -308,7 +315,7 @@ describe('sheaf prepare', () => {
       const fromShards = new Map<number, number>();
       for (const r of await all(s.out)) {
         const seen = new Set<number>();
-        for (const c of r.cands) for (const i of c.diff.idx) seen.add(i);
+        for (const c of r.cands) for (const i of [...c.diff.idx, ...c.diff.ridx]) seen.add(i);
         for (const i of seen) fromShards.set(i, (fromShards.get(i) ?? 0) + 1);
       }
       expect([...fromCounts].sort((a, b) => a[0] - b[0])).toEqual([...fromShards].sort((a, b) => a[0] - b[0]));

@@ -1,36 +1,37 @@
 /**
- * The extract + hash stages for one sentence, as differences: every
- * candidate's vector is stored as its difference from a reference candidate
- * (the first one given: the best-ranked candidate kept), computed from the
- * subtrees where the two differ.
+ * The extract + hash stages for one list, as a reference vector and
+ * per-candidate differences from it, computed from the nodes where
+ * candidates differ.
  *
- * Why: the candidates of an n-best list share most of their subtrees. A node
- * feature depends only on its node's subtree and span (templates declare
- * `local: false` otherwise), so
- *   - subtrees are identified exactly across the list (SubtreeIds);
- *   - the reference's features are computed once, node by node;
- *   - a candidate's difference is the features of the subtrees it has and
- *     the reference lacks, minus those the reference has and it lacks, plus
- *     the difference of the whole-tree (and non-local) features;
- *   - a subtree's features are computed once per list, and only when some
- *     candidate differs there: nodes shared by the whole list cost only
- *     their identity.
- * A bucket that no difference touches has the same value in every candidate,
- * so "drop features that are the same in every candidate" is simply "store
- * the reference only at buckets that some difference touches".
+ * Why: the candidates of an n-best list share most of their nodes. A node
+ * feature reads only as much of the tree as its template's `reach` declares
+ * (template.ts), so
+ *   - nodes are identified exactly across the list, at each declared level
+ *     of detail (subtree-ids.ts), and counted: the nodes that more than half
+ *     of the candidates have form the list's consensus;
+ *   - a candidate's vector, relative to the consensus, is the features of
+ *     its nodes outside the consensus minus those of the consensus nodes it
+ *     lacks, plus its whole-tree (and non-local) features;
+ *   - a node's features are computed once per list, and only for consensus
+ *     nodes and where some candidate deviates: so the work per candidate
+ *     follows what that candidate does differently, not its size.
+ * The stored reference is, per bucket, the value most candidates share (ties:
+ * the best-ranked holder); a difference holds what that candidate does
+ * differently. A bucket no difference touches has the same value in every
+ * candidate, so "drop features that are the same in every candidate" is
+ * "store the reference only where the list varies".
  *
  * Values. A feature value is the float32 rounding of the float64 sum of what
- * was emitted at its bucket (node features first, in tree order, then
- * whole-tree features), exactly as the direct path (direct-vectors.ts) sums
- * it. A difference is taken between those float32 values, in float64, where
- * it is exact for any two float32 values within 2^29 of each other in
- * magnitude: so reference + difference gives back the candidate's float32
- * value exactly (integer-valued features always; real values unless a bucket
- * sums several real-valued features, where summation order may move the last
- * bit).
+ * was emitted at its bucket (node features first, then whole-tree features
+ * in emission order), exactly as the direct path (direct-vectors.ts) sums
+ * it. Differences are taken between those float32 values, in float64, where
+ * they are exact (for any two float32 values within 2^29 of each other in
+ * magnitude), so reference + difference gives back the float32 value exactly;
+ * only a bucket that sums several real-valued node features could differ in
+ * its last bit, through summation order.
  *
- * Hot paths are typed arrays reused across sentences; the vectors returned
- * are views into buffers that the next call overwrites.
+ * Hot paths are typed arrays reused across lists; the vectors returned are
+ * views into buffers that the next call overwrites.
  */
 import { FeatureSink } from '../core/feature-sink.js';
 import { NameBook } from '../core/name-book.js';
@@ -38,7 +39,8 @@ import { SparseAccumulator } from '../core/sparse-accumulator.js';
 import type { SparseVector } from '../core/sparse-vector.js';
 import type { Tree } from '../core/tree.js';
 import { candidateView } from './candidate-view.js';
-import { SubtreeIds } from './subtree-ids.js';
+import { ListMerger, sortAndSum } from './merge-lists.js';
+import { identifyNodes, KINDS, kindOf, SequenceIds } from './subtree-ids.js';
 import type { CandidateView, ConfiguredTemplate } from './template.js';
 
 export interface ExtractorOptions {
@@ -58,9 +60,9 @@ export interface CandidateInput {
 }
 
 export interface SentenceVectors {
-  /** The reference's values at the stored buckets; null for a list without candidates. */
+  /** The reference vector at the stored buckets; null for a list without candidates. */
   ref: SparseVector | null;
-  /** Per candidate, its vector minus the reference's (empty for the reference itself). */
+  /** Per candidate, its vector minus the reference. */
   diffs: SparseVector[];
   /** Buckets whose value differs between some candidates, ascending. */
   varying: Uint32Array;
@@ -74,203 +76,443 @@ export interface SentenceVectors {
 const fround = Math.fround;
 
 /** Grows a typed array to at least `n` elements, keeping its contents. */
-function grown<T extends Int32Array | Float64Array | Uint8Array | Uint32Array>(a: T, n: number, fill?: number): T {
+function grown<T extends Int32Array | Float64Array | Uint8Array | Uint32Array>(a: T, n: number): T {
   if (a.length >= n) return a;
   let size = a.length * 2;
   while (size < n) size *= 2;
   const b = new (a.constructor as new (n: number) => T)(size);
-  if (fill !== undefined) b.fill(fill as never);
   b.set(a as never);
   return b;
+}
+
+interface Group {
+  kind: number;
+  templates: { t: ConfiguredTemplate; index: number }[];
 }
 
 export class VectorExtractor {
   readonly sink: FeatureSink;
   readonly names: NameBook | null;
-  private readonly local: { t: ConfiguredTemplate; index: number }[] = [];
+  /** Local node templates, grouped by the identity kind their reach needs. */
+  private readonly groups: Group[] = [];
+  private readonly wanted: boolean[] = new Array(KINDS).fill(false);
+  private readonly maxDepth: number;
   private readonly context: { t: ConfiguredTemplate; index: number }[] = [];
   private readonly whole: { t: ConfiguredTemplate; index: number }[] = [];
   private readonly dropUniform: boolean;
   private readonly nTemplates: number;
-  private readonly ids = new SubtreeIds();
+  private readonly ids = new SequenceIds();
 
-  // Per identity (reset per sentence).
-  private owner = new Int32Array(256);
-  private ownerNode = new Int32Array(256);
-  private featFrom = new Int32Array(256);
-  private featTo = new Int32Array(256);
-  private inRef = new Uint8Array(256);
-  private stamp = new Int32Array(256);
-  // Node features of computed identities: one pool per sentence.
-  private fb = new Int32Array(4096);
-  private fv = new Float64Array(4096);
-  private ft = new Uint8Array(4096);
+  // Node identities of every candidate, per group: nodeIds[g][c].
+  private nodeIds: Int32Array[][] = [];
+  private kindBuffers: Int32Array[] = [];
+  // Per identity (reset per list).
+  private owner = new Int32Array(1024);
+  private ownerNode = new Int32Array(1024);
+  private ownerGroup = new Int32Array(1024);
+  private featFrom = new Int32Array(1024);
+  private featTo = new Int32Array(1024);
+  private inRef = new Uint8Array(1024);
+  private stamp = new Int32Array(1024);
+  private consensusIds: number[] = [];
+  // Node features of computed identities: one pool per list.
+  private fb = new Int32Array(8192);
+  private fv = new Float64Array(8192);
+  private ft = new Uint8Array(8192);
   private fn = 0;
-  // Whole-tree (and non-local) features of each candidate: one pool per sentence.
+  // The same, per identity sorted by bucket with equal buckets summed (what differences merge).
+  private sb = new Int32Array(8192);
+  private sv = new Float64Array(8192);
+  private sn = 0;
+  private sFrom = new Int32Array(1024);
+  private sTo = new Int32Array(1024);
+  /** True when some node feature of this list has a value that is not an integer. */
+  private nodeReal = false;
+  private readonly merger = new ListMerger();
+  // Whole-tree (and non-local) features of each candidate: one pool per list.
   private tb = new Int32Array(1024);
   private tv = new Float64Array(1024);
   private tt = new Uint8Array(1024);
   private tn = 0;
   private tFrom = new Int32Array(64);
-  // Output buffers.
-  private outIdx = new Uint32Array(4096);
-  private outVal = new Float64Array(4096);
+  // Differences from the first candidate, then from the reference.
+  private dIdx = new Uint32Array(8192);
+  private dVal = new Float64Array(8192);
+  private oIdx = new Uint32Array(8192);
+  private oVal = new Float64Array(8192);
+
+  /** Work done so far (for benchmarks): what the per-candidate cost follows. */
+  readonly work = { lists: 0, candidates: 0, nodes: 0, identities: 0, computed: 0, replayed: 0, touched: 0, stored: 0 };
 
   private readonly nRef = new SparseAccumulator();
-  private readonly tRef = new SparseAccumulator();
-  private readonly dN = new SparseAccumulator();
   private readonly tCand = new SparseAccumulator();
-  private readonly vary = new SparseAccumulator();
+  private readonly nnz = new SparseAccumulator();
   private readonly fired = new SparseAccumulator();
 
   constructor(readonly options: ExtractorOptions) {
     if (options.templates.length > 31) throw new RangeError(`expected at most 31 templates, got ${options.templates.length}`);
     this.names = options.names ? new NameBook(options.names) : null;
     this.sink = new FeatureSink(options.bits, options.seed, this.names);
+    let maxDepth = 0;
     options.templates.forEach((t, index) => {
-      if (t.node && t.local !== false) this.local.push({ t, index });
-      if (t.node && t.local === false) this.context.push({ t, index });
       if (t.tree) this.whole.push({ t, index });
+      if (!t.node) return;
+      if (t.local === false || !t.reach) {
+        this.context.push({ t, index });
+        return;
+      }
+      const kind = kindOf(t.reach.depth, t.reach.edgeTags === true);
+      this.wanted[kind] = true;
+      maxDepth = Math.max(maxDepth, t.reach.depth);
+      let g = this.groups.find((x) => x.kind === kind);
+      if (!g) {
+        g = { kind, templates: [] };
+        this.groups.push(g);
+      }
+      g.templates.push({ t, index });
     });
+    this.maxDepth = maxDepth;
     this.dropUniform = options.dropUniform ?? true;
     this.nTemplates = options.templates.length;
   }
 
-  /** The vectors of one list; the first candidate is the reference. */
+  /** The vectors of one list; the first candidate is the best-ranked. */
   sentence(cands: readonly CandidateInput[]): SentenceVectors {
     const m = cands.length;
     const templateCounts = new Uint32Array(2 * this.nTemplates);
     if (m === 0) return { ref: null, diffs: [], varying: new Uint32Array(0), templateCounts };
-    const ids = this.ids;
-    ids.reset(cands[0].tree.wordNodes.length);
-    const views: CandidateView[] = new Array(m);
-    const nodeIds: Int32Array[] = new Array(m);
-    for (let c = 0; c < m; c++) {
-      const t = cands[c].tree;
-      views[c] = candidateView(t, cands[c].score, cands[c].rank);
-      nodeIds[c] = ids.identify(t, new Int32Array(t.size));
-    }
-    this.resetIdentities(ids.count);
-    for (let c = 0; c < m; c++) {
-      const t = cands[c].tree;
-      const own = nodeIds[c];
-      for (let i = 0; i < t.size; i++) {
-        const id = own[i];
-        if (!t.isWord[i] && this.owner[id] < 0) {
-          this.owner[id] = c;
-          this.ownerNode[id] = i;
-        }
-      }
-    }
+    const views = this.identify(cands);
     this.fn = 0;
+    this.sn = 0;
+    this.nodeReal = false;
     this.tn = 0;
     this.tFrom = grown(this.tFrom, m + 1);
     for (let c = 0; c < m; c++) this.wholeTree(views[c], c);
     this.tFrom[m] = this.tn;
+    this.consensus(cands, views);
+    const from = this.differencesFromConsensus(cands, views);
+    const { ref, diffs, varying } = this.fromReference(m, from);
+    const w = this.work;
+    w.lists++;
+    w.candidates += m;
+    w.identities += this.ids.count;
+    w.computed += this.fn;
+    w.stored += ref.idx.length;
+    for (const d of diffs) w.stored += d.idx.length;
+    for (const c of cands) w.nodes += c.tree.size;
+    this.countTemplates(templateCounts, varying);
+    return { ref, diffs, varying, templateCounts };
+  }
 
-    // The reference: all its node features, and its whole-tree features.
+  /** Views and node identities of every candidate; owners of each identity. */
+  private identify(cands: readonly CandidateInput[]): CandidateView[] {
+    const m = cands.length;
+    const ids = this.ids;
+    ids.reset(cands[0].tree.wordNodes.length);
+    const views: CandidateView[] = new Array(m);
+    let maxSize = 0;
+    for (const c of cands) maxSize = Math.max(maxSize, c.tree.size);
+    while (this.kindBuffers.length < KINDS) this.kindBuffers.push(new Int32Array(256));
+    for (let k = 0; k < KINDS; k++) this.kindBuffers[k] = grown(this.kindBuffers[k], maxSize);
+    const G = this.groups.length;
+    while (this.nodeIds.length < G) this.nodeIds.push([]);
+    for (let c = 0; c < m; c++) {
+      const t = cands[c].tree;
+      views[c] = candidateView(t, cands[c].score, cands[c].rank);
+      identifyNodes(views[c], ids, this.wanted, this.maxDepth, this.kindBuffers);
+      for (let g = 0; g < G; g++) {
+        const list = this.nodeIds[g];
+        if (list.length <= c || list[c].length < t.size) list[c] = new Int32Array(Math.max(t.size, 64));
+        list[c].set(this.kindBuffers[this.groups[g].kind].subarray(0, t.size));
+      }
+    }
+    const count = ids.count;
+    for (const name of ['owner', 'ownerNode', 'ownerGroup', 'featFrom', 'featTo', 'sFrom', 'sTo', 'stamp'] as const) this[name] = grown(this[name], count);
+    this.inRef = grown(this.inRef, count);
+    this.owner.fill(-1, 0, count);
+    this.featFrom.fill(-1, 0, count);
+    this.inRef.fill(0, 0, count);
+    this.stamp.fill(0, 0, count);
+    for (let c = 0; c < m; c++) {
+      const t = cands[c].tree;
+      for (let g = 0; g < G; g++) {
+        const own = this.nodeIds[g][c];
+        for (let i = 0; i < t.size; i++) {
+          if (t.isWord[i]) continue;
+          const id = own[i];
+          if (this.owner[id] < 0) {
+            this.owner[id] = c;
+            this.ownerNode[id] = i;
+            this.ownerGroup[id] = g;
+          }
+        }
+      }
+    }
+    return views;
+  }
+
+  /** The consensus: identities more than half of the candidates have; their summed node features in nRef. */
+  private consensus(cands: readonly CandidateInput[], views: CandidateView[]): void {
+    const m = cands.length;
+    const count = this.stamp; // reused as a counter here, reset below
+    const G = this.groups.length;
+    this.consensusIds.length = 0;
+    for (let c = 0; c < m; c++) {
+      const t = cands[c].tree;
+      for (let g = 0; g < G; g++) {
+        const own = this.nodeIds[g][c];
+        for (let i = 0; i < t.size; i++) if (!t.isWord[i]) count[own[i]]++;
+      }
+    }
     const nRef = this.nRef;
-    const tRef = this.tRef;
     nRef.clear();
-    tRef.clear();
-    const refTree = cands[0].tree;
-    const refIds = nodeIds[0];
-    for (let i = 0; i < refTree.size; i++) {
-      if (refTree.isWord[i]) continue;
-      const id = refIds[i];
-      this.inRef[id] = 1;
-      this.ensure(id, views);
-      nRef.addAll(this.fb, this.fv, this.featFrom[id], this.featTo[id]);
+    for (let c = 0; c < m; c++) {
+      const t = cands[c].tree;
+      for (let g = 0; g < G; g++) {
+        const own = this.nodeIds[g][c];
+        for (let i = 0; i < t.size; i++) {
+          if (t.isWord[i]) continue;
+          const id = own[i];
+          if (this.inRef[id] || count[id] * 2 <= m) continue;
+          this.inRef[id] = 1;
+          this.consensusIds.push(id);
+          this.ensure(id, views);
+          nRef.addAll(this.sb, this.sv, this.sFrom[id], this.sTo[id]);
+        }
+      }
     }
-    // Whole-tree values are summed after the node part, in emission order, as the direct path sums them.
-    for (let k = this.tFrom[0]; k < this.tFrom[1]; k++) {
-      const b = this.tb[k];
-      if (!tRef.has(b)) tRef.add(b, nRef.get(b));
-      tRef.add(b, this.tv[k]);
-    }
+    this.stamp.fill(-1, 0, this.ids.count);
+  }
 
-    // Differences.
-    const vary = this.vary;
-    vary.clear();
+  /**
+   * Each candidate minus the consensus's node part (exact differences of
+   * float32 values), into dIdx/dVal; returns the ranges.
+   */
+  private differencesFromConsensus(cands: readonly CandidateInput[], views: CandidateView[]): Int32Array {
+    const m = cands.length;
     const from = new Int32Array(m + 1);
+    const { nRef, tCand, merger } = this;
+    const consensus = this.consensusIds;
     let out = 0;
-    const dN = this.dN;
-    const tCand = this.tCand;
-    for (let c = 1; c < m; c++) {
+    for (let c = 0; c < m; c++) {
       from[c] = out;
       const t = cands[c].tree;
-      const own = nodeIds[c];
-      dN.clear();
-      for (let i = 0; i < t.size; i++) {
-        if (t.isWord[i]) continue;
-        const id = own[i];
-        this.stamp[id] = c;
-        if (this.inRef[id]) continue;
-        this.ensure(id, views);
-        dN.addAll(this.fb, this.fv, this.featFrom[id], this.featTo[id], 1);
+      merger.reset();
+      for (let g = 0; g < this.groups.length; g++) {
+        const own = this.nodeIds[g][c];
+        for (let i = 0; i < t.size; i++) {
+          if (t.isWord[i]) continue;
+          const id = own[i];
+          this.stamp[id] = c;
+          if (this.inRef[id]) continue;
+          this.ensure(id, views);
+          merger.add(this.sFrom[id], this.sTo[id], 1);
+          this.work.replayed += this.sTo[id] - this.sFrom[id];
+        }
       }
-      for (let i = 0; i < refTree.size; i++) {
-        if (refTree.isWord[i]) continue;
-        const id = refIds[i];
-        if (this.stamp[id] !== c) dN.addAll(this.fb, this.fv, this.featFrom[id], this.featTo[id], -1);
+      for (let k = 0; k < consensus.length; k++) {
+        const id = consensus[k];
+        if (this.stamp[id] !== c) {
+          merger.add(this.sFrom[id], this.sTo[id], -1);
+          this.work.replayed += this.sTo[id] - this.sFrom[id];
+        }
       }
+      const nd = merger.merge(this.sb, this.sv);
+      const dIdx = merger.outIdx;
+      const dVal = merger.outVal;
+      this.work.touched += nd;
+      // Whole-tree values are summed after the node part, in emission order, as the direct path sums them.
       tCand.clear();
-      for (let k = this.tFrom[c]; k < this.tFrom[c + 1]; k++) {
+      const t0 = this.tFrom[c];
+      const t1 = this.tFrom[c + 1];
+      for (let k = t0; k < t1; k++) {
         const b = this.tb[k];
-        if (!tCand.has(b)) tCand.add(b, nRef.get(b) + dN.get(b));
+        if (!tCand.has(b)) tCand.add(b, nRef.get(b) + valueAt(dIdx, dVal, nd, b));
         tCand.add(b, this.tv[k]);
       }
-      for (let k = this.tFrom[c]; k < this.tFrom[c + 1]; k++) dN.touch(this.tb[k]);
-      for (let k = this.tFrom[0]; k < this.tFrom[1]; k++) dN.touch(this.tb[k]);
-      const order = dN.sortedBuckets();
-      if (out + order.length > this.outIdx.length) this.growOut(out + order.length);
-      for (let k = 0; k < order.length; k++) {
-        const b = order[k];
-        const vc = tCand.has(b) ? tCand.get(b) : nRef.get(b) + dN.get(b);
-        const d = fround(vc) - fround(tRef.has(b) ? tRef.get(b) : nRef.get(b));
+      const tb = tCand.sortedBuckets();
+      const need = out + nd + tb.length;
+      if (need > this.dIdx.length) {
+        this.dIdx = grown(this.dIdx, need);
+        this.dVal = grown(this.dVal, need);
+      }
+      // Integer node values below 2^24 round to themselves: there the difference is what the merge gave.
+      const exact = this.nodeReal;
+      let i = 0;
+      let j = 0;
+      while (i < nd || j < tb.length) {
+        let b: number;
+        let d: number;
+        if (j >= tb.length || (i < nd && dIdx[i] < tb[j])) {
+          b = dIdx[i];
+          d = exact ? fround(nRef.get(b) + dVal[i]) - fround(nRef.get(b)) : dVal[i];
+          i++;
+        } else {
+          b = tb[j++];
+          if (i < nd && dIdx[i] === b) i++;
+          d = fround(tCand.get(b)) - fround(nRef.get(b));
+        }
         if (d !== 0) {
-          this.outIdx[out] = b;
-          this.outVal[out++] = d;
-          vary.add(b, 1);
+          this.dIdx[out] = b;
+          this.dVal[out++] = d;
         }
       }
     }
     from[m] = out;
-
-    const varying = vary.sortedBuckets().slice();
-    // The stored reference.
-    const refBuckets = this.dropUniform ? varying : this.refSupport();
-    if (out + refBuckets.length > this.outIdx.length) this.growOut(out + refBuckets.length);
-    const refFrom = out;
-    for (let k = 0; k < refBuckets.length; k++) {
-      const b = refBuckets[k];
-      const v = fround(tRef.has(b) ? tRef.get(b) : nRef.get(b));
-      if (v !== 0) {
-        this.outIdx[out] = b;
-        this.outVal[out++] = v;
-      }
-    }
-    const ref = { idx: this.outIdx.subarray(refFrom, out), val: this.outVal.subarray(refFrom, out) };
-    // The reference's own difference is empty.
-    const diffs: SparseVector[] = [{ idx: this.outIdx.subarray(0, 0), val: this.outVal.subarray(0, 0) }];
-    for (let c = 1; c < m; c++) diffs.push({ idx: this.outIdx.subarray(from[c], from[c + 1]), val: this.outVal.subarray(from[c], from[c + 1]) });
-    this.countTemplates(templateCounts);
-    return { ref, diffs, varying, templateCounts };
+    return from;
   }
 
-  /** Buckets where the reference is non-zero (node or whole-tree part), ascending. */
-  private refSupport(): Uint32Array {
+  /**
+   * The reference — per bucket, the value most candidates share; ties to the
+   * best-ranked holder — and each candidate's difference from it. Starting
+   * from the consensus's node values r, a candidate that does not touch a
+   * bucket holds r there; only where at least half the candidates touch a
+   * bucket can another value be the most shared, so only those are counted.
+   */
+  private fromReference(m: number, from: Int32Array): { ref: SparseVector; diffs: SparseVector[]; varying: Uint32Array } {
+    const { dIdx, dVal, nnz } = this;
+    const total = from[m];
+    nnz.clear();
+    for (let k = 0; k < total; k++) nnz.add(dIdx[k], 1);
+    const touched = nnz.sortedBuckets().slice();
+    // Heavy buckets, numbered: hIndex holds index + 1 per bucket.
+    const hIndex = this.fired;
+    hIndex.clear();
+    let nHeavy = 0;
+    for (let k = 0; k < touched.length; k++) if (nnz.get(touched[k]) * 2 >= m) hIndex.add(touched[k], ++nHeavy);
+    const shiftIdx = new Uint32Array(nHeavy);
+    const shiftVal = new Float64Array(nHeavy);
+    let nShift = 0;
+    if (nHeavy > 0) {
+      // Each heavy bucket's (value, candidate) pairs, in candidate order.
+      const hAt = new Int32Array(nHeavy + 1);
+      const hb = new Uint32Array(nHeavy);
+      for (let k = 0; k < touched.length; k++) {
+        const h = hIndex.get(touched[k]);
+        if (h > 0) {
+          hb[h - 1] = touched[k];
+          hAt[h] = nnz.get(touched[k]);
+        }
+      }
+      for (let h = 0; h < nHeavy; h++) hAt[h + 1] += hAt[h];
+      const vals = new Float64Array(hAt[nHeavy]);
+      const who = new Int32Array(hAt[nHeavy]);
+      const fill = hAt.slice(0, nHeavy);
+      for (let c = 0; c < m; c++) {
+        for (let k = from[c]; k < from[c + 1]; k++) {
+          const h = hIndex.get(dIdx[k]);
+          if (h === 0) continue;
+          vals[fill[h - 1]] = dVal[k];
+          who[fill[h - 1]++] = c;
+        }
+      }
+      for (let h = 0; h < nHeavy; h++) {
+        const a = hAt[h];
+        const e = hAt[h + 1];
+        // The value 0 (untouched): held by m − n candidates, first by the first index not listed.
+        let zeroFirst = 0;
+        for (let k = a; k < e && who[k] === zeroFirst; k++) zeroFirst++;
+        let best = 0;
+        let bestCount = m - (e - a);
+        let bestFirst = zeroFirst;
+        for (let k = a; k < e; k++) {
+          const v = vals[k];
+          let seenBefore = false;
+          for (let j = a; j < k; j++) {
+            if (vals[j] === v) {
+              seenBefore = true;
+              break;
+            }
+          }
+          if (seenBefore) continue;
+          let n = 0;
+          for (let j = k; j < e; j++) if (vals[j] === v) n++;
+          if (n > bestCount || (n === bestCount && who[k] < bestFirst)) {
+            best = v;
+            bestCount = n;
+            bestFirst = who[k];
+          }
+        }
+        if (best !== 0) {
+          shiftIdx[nShift] = hb[h];
+          shiftVal[nShift++] = best;
+        }
+      }
+    }
+    hIndex.clear();
+    // Differences from the reference, merged per candidate.
+    const need = total + m * nShift + touched.length + this.nRef.size;
+    if (need > this.oIdx.length) {
+      this.oIdx = grown(this.oIdx, need);
+      this.oVal = grown(this.oVal, need);
+    }
+    const oIdx = this.oIdx;
+    const oVal = this.oVal;
+    let out = 0;
+    const starts = new Int32Array(m + 1);
+    for (let c = 0; c < m; c++) {
+      starts[c] = out;
+      let i = from[c];
+      const iEnd = from[c + 1];
+      let j = 0;
+      while (i < iEnd || j < nShift) {
+        let b: number;
+        let v: number;
+        if (j >= nShift || (i < iEnd && dIdx[i] < shiftIdx[j])) {
+          b = dIdx[i];
+          v = dVal[i++];
+        } else if (i >= iEnd || shiftIdx[j] < dIdx[i]) {
+          b = shiftIdx[j];
+          v = -shiftVal[j++];
+        } else {
+          b = dIdx[i];
+          v = dVal[i++] - shiftVal[j++];
+        }
+        if (v !== 0) {
+          oIdx[out] = b;
+          oVal[out++] = v;
+        }
+      }
+    }
+    starts[m] = out;
+    // What varies: the buckets some difference from the reference touches.
+    nnz.clear();
+    for (let k = 0; k < out; k++) nnz.add(oIdx[k], 1);
+    const varies = nnz.sortedBuckets().slice();
+    // The stored reference: the consensus's values, shifted.
+    const refFrom = out;
+    const buckets = this.dropUniform ? varies : this.refSupport(varies, shiftIdx.subarray(0, nShift));
+    let j = 0;
+    for (let k = 0; k < buckets.length; k++) {
+      const b = buckets[k];
+      while (j < nShift && shiftIdx[j] < b) j++;
+      const r = fround(this.nRef.get(b));
+      const v = j < nShift && shiftIdx[j] === b ? r + shiftVal[j] : r;
+      if (v !== 0) {
+        oIdx[out] = b;
+        oVal[out++] = v;
+      }
+    }
+    const ref = { idx: oIdx.subarray(refFrom, out), val: oVal.subarray(refFrom, out) };
+    const diffs: SparseVector[] = new Array(m);
+    for (let c = 0; c < m; c++) diffs[c] = { idx: oIdx.subarray(starts[c], starts[c + 1]), val: oVal.subarray(starts[c], starts[c + 1]) };
+    return { ref, diffs, varying: varies };
+  }
+
+  /** Buckets where the consensus is non-zero, the reference shifts it, or the list varies, ascending. */
+  private refSupport(varying: Uint32Array, shifted: Uint32Array): Uint32Array {
     const acc = this.fired;
     acc.clear();
     for (const b of this.nRef.sortedBuckets()) acc.touch(b);
-    for (const b of this.tRef.sortedBuckets()) acc.touch(b);
+    for (const b of shifted) acc.touch(b);
+    for (const b of varying) acc.touch(b);
     const s = acc.sortedBuckets().slice();
     acc.clear();
     return s;
   }
 
   /** Distinct (template, bucket) pairs fired in the list, and how many of them vary. */
-  private countTemplates(counts: Uint32Array): void {
+  private countTemplates(counts: Uint32Array, varying: Uint32Array): void {
     if (this.nTemplates === 0) return;
     const seen = this.fired;
     seen.clear();
@@ -287,7 +529,7 @@ export class VectorExtractor {
     for (let k = 0; k < buckets.length; k++) {
       const b = buckets[k];
       let bits = seen.get(b);
-      const varies = this.vary.get(b) !== 0;
+      const varies = this.nnz.get(b) !== 0;
       for (let t = 0; bits !== 0; t++, bits >>>= 1) {
         if ((bits & 1) === 0) continue;
         counts[2 * t]++;
@@ -295,19 +537,7 @@ export class VectorExtractor {
       }
     }
     seen.clear();
-  }
-
-  private resetIdentities(count: number): void {
-    this.owner = grown(this.owner, count);
-    this.ownerNode = grown(this.ownerNode, count);
-    this.featFrom = grown(this.featFrom, count);
-    this.featTo = grown(this.featTo, count);
-    this.inRef = grown(this.inRef, count);
-    this.stamp = grown(this.stamp, count);
-    this.owner.fill(-1, 0, count);
-    this.featFrom.fill(-1, 0, count);
-    this.inRef.fill(0, 0, count);
-    this.stamp.fill(0, 0, count);
+    void varying;
   }
 
   /** Computes and keeps the node features of identity `id` (once per list). */
@@ -317,7 +547,7 @@ export class VectorExtractor {
     sink.clear();
     const view = views[this.owner[id]];
     const node = this.ownerNode[id];
-    for (const { t, index } of this.local) {
+    for (const { t, index } of this.groups[this.ownerGroup[id]].templates) {
       sink.template = index;
       t.node!(view, node, sink);
     }
@@ -333,6 +563,16 @@ export class VectorExtractor {
     this.featFrom[id] = this.fn;
     this.fn += n;
     this.featTo[id] = this.fn;
+    if (this.sn + n > this.sb.length) {
+      this.sb = grown(this.sb, this.sn + n);
+      this.sv = grown(this.sv, this.sn + n);
+    }
+    this.sb.set(sink.buckets.subarray(0, n), this.sn);
+    this.sv.set(sink.values.subarray(0, n), this.sn);
+    for (let k = 0; k < n; k++) if (!Number.isInteger(sink.values[k])) this.nodeReal = true;
+    this.sFrom[id] = this.sn;
+    this.sn = sortAndSum(this.sb, this.sv, this.sn, this.sn + n);
+    this.sTo[id] = this.sn;
   }
 
   /** Whole-tree and non-local features of candidate c, into the tree pool. */
@@ -366,9 +606,18 @@ export class VectorExtractor {
     this.tt.set(sink.templates.subarray(0, n), this.tn);
     this.tn += n;
   }
+}
 
-  private growOut(n: number): void {
-    this.outIdx = grown(this.outIdx, n);
-    this.outVal = grown(this.outVal, n);
+/** The value at bucket b of a sorted list (0 when absent): binary search. */
+function valueAt(idx: Uint32Array, val: Float64Array, n: number, b: number): number {
+  let lo = 0;
+  let hi = n - 1;
+  while (lo <= hi) {
+    const mid = (lo + hi) >> 1;
+    const x = idx[mid];
+    if (x === b) return val[mid];
+    if (x < b) lo = mid + 1;
+    else hi = mid - 1;
   }
+  return 0;
 }

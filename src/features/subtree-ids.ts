@@ -1,97 +1,99 @@
 /**
- * Exact identities of subtrees across the candidates of one sentence
- * (hash-consing). Candidates share their words, so a word's identity is its
- * position (0 … n−1) and a constituent's identity is its label with the
- * identities of its children, which fixes its whole subtree and its span.
- * Within one tree every node has its own identity (a node's subtree strictly
- * contains its descendants'; disjoint nodes cover different words).
+ * Exact identities of nodes across the candidates of one sentence
+ * (hash-consing of integer sequences), at the levels of detail that feature
+ * templates declare they read (template.ts, `Reach`):
+ *   atom(i)      = label, span, head word position and tag, height;
+ *   level 0      = atom(i);
+ *   level d ≥ 1  = atom(i) with the level-(d−1) identities of its children;
+ *   edge level d = level d with the tags of the span's first and last word.
+ * Candidates share their words, so a word's identity at every level is its
+ * position (0 … n−1). Two nodes with one identity at level d read the same
+ * things, so templates of reach d give them the same features. Within one
+ * tree every node has its own identity at every level (nested nodes of one
+ * span differ in height; disjoint ones in span).
  *
  * Hot path: an open-addressing table over integer sequences kept in one
- * pool; keys are compared element by element, never hashed into a string,
- * so two different subtrees can never share an identity.
+ * pool; keys are compared element by element, never only by hash, so two
+ * different nodes can never share an identity.
  */
-import type { Tree } from '../core/tree.js';
+import type { CandidateView } from './template.js';
 
-export class SubtreeIds {
+export class SequenceIds {
   /** Table slot → identity + 1 (0: empty). */
-  private slots = new Int32Array(1024);
-  private usedSlots = new Int32Array(256);
+  private slots = new Int32Array(4096);
+  private usedSlots = new Int32Array(1024);
   private nUsed = 0;
-  /** Per identity (constituents only, offset by `words`): start of its key in the pool, and its hash. */
-  private keyAt = new Int32Array(256);
-  private hashOf = new Int32Array(256);
-  private pool = new Int32Array(4096);
+  private keyAt = new Int32Array(1024);
+  private hashOf = new Int32Array(1024);
+  private pool = new Int32Array(8192);
   private poolLen = 0;
-  private words = 0;
+  private first = 0;
   private next = 0;
-  private kids = new Int32Array(64);
+  /** The key being built. */
+  key = new Int32Array(64);
+  len = 0;
 
-  /** Starts a sentence of `words` words: identities 0 … words−1 are the words. */
-  reset(words: number): void {
+  /** Starts afresh; identities are handed out from `first` on. */
+  reset(first: number): void {
     for (let k = 0; k < this.nUsed; k++) this.slots[this.usedSlots[k]] = 0;
     this.nUsed = 0;
     this.poolLen = 0;
-    this.words = words;
-    this.next = words;
+    this.first = first;
+    this.next = first;
   }
 
-  /** Identities handed out so far (words included). */
+  /** Identities handed out so far (plus `first`). */
   get count(): number {
     return this.next;
   }
 
-  /** The identity of every node of `t` (written into `out`, which must hold t.size). */
-  identify(t: Tree, out: Int32Array): Int32Array {
-    const end = t.end;
-    for (let i = t.size - 1; i >= 0; i--) {
-      if (t.isWord[i]) {
-        out[i] = t.start[i];
-        continue;
-      }
-      let n = 0;
-      let h = Math.imul(t.sym[i] + 0x51ed27, 0x9e3779b1);
-      for (let c = i + 1; c < end[i]; c = end[c]) {
-        if (n === this.kids.length) {
-          const k = new Int32Array(n * 2);
-          k.set(this.kids);
-          this.kids = k;
-        }
-        const id = out[c];
-        this.kids[n++] = id;
-        h = Math.imul(h ^ id, 0x85ebca6b);
-        h ^= h >>> 13;
-      }
-      out[i] = this.find(t.sym[i], n, h | 0);
-    }
-    return out;
+  /** Starts a key. */
+  begin(): void {
+    this.len = 0;
   }
 
-  private find(sym: number, n: number, h: number): number {
+  push(x: number): void {
+    if (this.len === this.key.length) {
+      const k = new Int32Array(this.len * 2);
+      k.set(this.key);
+      this.key = k;
+    }
+    this.key[this.len++] = x;
+  }
+
+  /** The identity of the key built since begin(). */
+  id(): number {
+    const key = this.key;
+    const n = this.len;
+    let h = 0x2f0b1e5d ^ n;
+    for (let j = 0; j < n; j++) {
+      h = Math.imul(h ^ key[j], 0x85ebca6b);
+      h ^= h >>> 13;
+    }
+    h |= 0;
     const mask = this.slots.length - 1;
     const pool = this.pool;
-    const kids = this.kids;
     for (let s = (h ^ (h >>> 16)) & mask; ; s = (s + 1) & mask) {
       const e = this.slots[s];
-      if (e === 0) return this.add(sym, n, h, s);
-      const id = e - 1;
-      const k = id - this.words;
+      if (e === 0) return this.add(n, h, s);
+      const k = e - 1 - this.first;
       if (this.hashOf[k] !== h) continue;
       const at = this.keyAt[k];
-      if (pool[at] !== sym || pool[at + 1] !== n) continue;
+      if (pool[at] !== n) continue;
       let same = true;
       for (let j = 0; j < n; j++) {
-        if (pool[at + 2 + j] !== kids[j]) {
+        if (pool[at + 1 + j] !== key[j]) {
           same = false;
           break;
         }
       }
-      if (same) return id;
+      if (same) return e - 1;
     }
   }
 
-  private add(sym: number, n: number, h: number, slot: number): number {
+  private add(n: number, h: number, slot: number): number {
     const id = this.next++;
-    const k = id - this.words;
+    const k = id - this.first;
     if (k === this.keyAt.length) {
       const a = new Int32Array(k * 2);
       a.set(this.keyAt);
@@ -100,16 +102,15 @@ export class SubtreeIds {
       b.set(this.hashOf);
       this.hashOf = b;
     }
-    if (this.poolLen + n + 2 > this.pool.length) {
-      const p = new Int32Array(Math.max(this.pool.length * 2, this.poolLen + n + 2));
+    if (this.poolLen + n + 1 > this.pool.length) {
+      const p = new Int32Array(Math.max(this.pool.length * 2, this.poolLen + n + 1));
       p.set(this.pool.subarray(0, this.poolLen));
       this.pool = p;
     }
     this.keyAt[k] = this.poolLen;
     this.hashOf[k] = h;
-    this.pool[this.poolLen++] = sym;
     this.pool[this.poolLen++] = n;
-    for (let j = 0; j < n; j++) this.pool[this.poolLen++] = this.kids[j];
+    for (let j = 0; j < n; j++) this.pool[this.poolLen++] = this.key[j];
     this.slots[slot] = id + 1;
     if (this.nUsed === this.usedSlots.length) {
       const u = new Int32Array(this.nUsed * 2);
@@ -124,13 +125,63 @@ export class SubtreeIds {
   private rehash(): void {
     this.slots = new Int32Array(this.slots.length * 2);
     const mask = this.slots.length - 1;
-    for (let u = 0; u < this.nUsed; u++) {
-      const k = u; // identities words … next−1 were added in order; k-th used slot holds identity words + k
+    // The k-th used slot holds identity first + k (identities are added in order).
+    for (let k = 0; k < this.nUsed; k++) {
       const h = this.hashOf[k];
       let s = (h ^ (h >>> 16)) & mask;
       while (this.slots[s] !== 0) s = (s + 1) & mask;
-      this.slots[s] = this.words + k + 1;
-      this.usedSlots[u] = s;
+      this.slots[s] = this.first + k + 1;
+      this.usedSlots[k] = s;
+    }
+  }
+}
+
+/** Identity kinds: levels 0 … 3, and edge levels 0 … 3 (level + first/last tags). */
+export const KINDS = 8;
+export const kindOf = (depth: number, edgeTags: boolean): number => (edgeTags ? 4 : 0) + depth;
+
+/**
+ * Writes the identities of every node of a candidate for the kinds asked
+ * (`wanted[k]`), into `out[k]` (each of at least tree.size entries). Words
+ * get their position at every kind.
+ */
+export function identifyNodes(view: CandidateView, ids: SequenceIds, wanted: readonly boolean[], maxDepth: number, out: Int32Array[]): void {
+  const t = view.tree;
+  const { sym, start, stop, end, parent, isWord, wordNodes } = t;
+  const hw = view.headWord;
+  const height = view.height;
+  const r0 = out[0];
+  for (let i = t.size - 1; i >= 0; i--) {
+    if (isWord[i]) {
+      for (let k = 0; k < KINDS; k++) if (wanted[k] || k <= maxDepth) out[k][i] = start[i];
+      continue;
+    }
+    const h = hw[i];
+    ids.begin();
+    ids.push(-1); // kind tag: atoms
+    ids.push(sym[i]);
+    ids.push(start[i]);
+    ids.push(stop[i]);
+    ids.push(start[h]);
+    ids.push(sym[parent[h]]);
+    ids.push(height[i]);
+    r0[i] = ids.id();
+    for (let d = 1; d <= maxDepth; d++) {
+      const below = out[d - 1];
+      ids.begin();
+      ids.push(-1 - d);
+      ids.push(r0[i]);
+      for (let c = i + 1; c < end[i]; c = end[c]) ids.push(below[c]);
+      out[d][i] = ids.id();
+    }
+    for (let d = 0; d <= 3; d++) {
+      if (!wanted[4 + d]) continue;
+      ids.begin();
+      ids.push(-10 - d);
+      ids.push(out[d][i]);
+      ids.push(sym[parent[wordNodes[start[i]]]]);
+      ids.push(sym[parent[wordNodes[stop[i] - 1]]]);
+      out[4 + d][i] = ids.id();
     }
   }
 }

@@ -4,9 +4,11 @@
  * gets a new id and never silently shares buckets with the old one.
  *
  * Templates are pure. Each configured template may fire:
- * - `node(view, i, sink)`: at constituent i, features that depend only on
- *   i's subtree and its span (a feature that mentions a parent is fired at
- *   the parent), so features of equal subtrees at equal positions are equal;
+ * - `node(view, i, sink)`: features at constituent i (a feature that
+ *   mentions a parent is fired at the parent). What they may read is
+ *   declared by `reach` (below): the extractor shares a node's features
+ *   between all candidates of a list where that much of the tree is equal,
+ *   so a template must read nothing beyond its declared reach;
  * - `tree(view, sink)`: features of the whole candidate.
  */
 import type { FeatureSink } from '../core/feature-sink.js';
@@ -30,11 +32,24 @@ export interface CandidateView {
   rank: number;
 }
 
+/**
+ * What node features at constituent i may read. Always: the sentence's words,
+ * and i's atom: its label, span, head word (position and POS tag) and height.
+ * `depth` d ≥ 1: also the atoms of its descendants down to d levels (a word
+ * child is known by its position), hence which of them are words or
+ * preterminals. `edgeTags`: also the POS tags of the first and last word of
+ * i's span. Anything else (a sibling, a parent, a tag outside the span):
+ * `local: false`, and the features are computed for every candidate afresh.
+ */
+export interface Reach {
+  depth: 0 | 1 | 2 | 3;
+  edgeTags?: boolean;
+}
+
 export interface ConfiguredTemplate {
-  /**
-   * False when, with these options, node features also read outside the
-   * node's subtree (they are then never shared between candidates).
-   */
+  /** What node features read; required with `node` unless `local` is false. */
+  reach?: Reach;
+  /** False when, with these options, node features read beyond any reach (never shared). */
   local?: boolean;
   node?(view: CandidateView, i: number, sink: FeatureSink): void;
   tree?(view: CandidateView, sink: FeatureSink): void;

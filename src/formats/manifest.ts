@@ -84,10 +84,11 @@ export interface ShardManifest {
 /** Record layout written into every manifest (the bytes are in formats/shard-record.ts). */
 export const RECORD_LAYOUT: Record<string, string> = {
   sentence: 'map {id, pos, fold, gold, len, flag, ref, cands}',
-  ref: 'map {idx, val, dtype} | nil: the reference candidate (best-ranked kept) at the stored buckets',
-  candidate: 'map {score, rank, matched, test, idx, val, dtype}: its vector minus the reference\'s',
-  idx: 'bin: uint32 little-endian, ascending',
-  val: 'bin: little-endian values of numpy type `dtype` (<i1, <i2, <i4, <f4 or <f8)',
+  ref: 'map {idx, val, dtype, ridx, rval, rdtype} | nil: per bucket the value most candidates share, where the list varies',
+  candidate: 'map {score, rank, matched, test, idx, val, dtype, ridx, rval, rdtype}: its vector minus the reference',
+  'idx, ridx': 'bin: uint32 little-endian, ascending; an index is in at most one of the two',
+  val: 'bin: the integer-valued entries, numpy type `dtype` (<i1, <i2 or <i4)',
+  rval: 'bin: the other entries, numpy type `rdtype` (<f4 or <f8)',
 };
 
 const SHARD_FILE = /^shard-\d{5}\.msgpack(\.gz)?$/;

@@ -5,27 +5,31 @@
  * data.
  *
  *   { id: str, pos: int, fold: int | nil, gold: int, len: int, flag: str | nil,
- *     ref: { idx: bin, val: bin, dtype: str } | nil,
+ *     ref: { idx: bin, val: bin, dtype: str, ridx: bin, rval: bin, rdtype: str } | nil,
  *     cands: [ { score: float64, rank: int, matched: int, test: int,
- *                idx: bin, val: bin, dtype: str } ] }
+ *                idx: bin, val: bin, dtype: str, ridx: bin, rval: bin, rdtype: str } ] }
  *
  * - `pos`: the record's 0-based position in the input (all dump files in the
  *   order given, records counted whatever their fate), which restores input
  *   order when parts made elsewhere are merged.
  * - `len`: words in the sentence, punctuation included.
  * - `flag`: `"no-candidates"` when the base parser gave none, else nil.
- * - `ref`: the reference candidate's (the first, best-ranked kept) vector at
- *   the buckets stored; nil without candidates.
- * - per candidate, `idx`/`val` is its vector minus the reference's; the
- *   absolute vector is ref + difference (the reference's own is empty).
- * - `idx`: uint32 little-endian, ascending; `val`: the narrowest exact type
- *   of the values, named by `dtype` as numpy spells it (`<i1`, `<i2`, `<i4`,
- *   `<f4`, `<f8`).
+ * - `ref`: the reference vector (per bucket, the value most candidates of
+ *   the list share) at the buckets where the list varies; nil without
+ *   candidates.
+ * - per candidate, its vector minus the reference; the absolute vector is
+ *   reference + difference.
+ * - a vector comes in two parts: `idx`/`val` the integer-valued entries,
+ *   `ridx`/`rval` the others (usually a few: the base score, real-valued
+ *   shape measures); an index is in at most one part. Indices: uint32
+ *   little-endian, ascending. Values: the narrowest exact type, named by
+ *   `dtype` / `rdtype` as numpy spells it (`<i1`, `<i2`, `<i4` for the
+ *   integer part; `<f4`, `<f8` for the other).
  *
  * Pure: no node: imports.
  */
 import { DataError } from '../core/errors.js';
-import type { StoredVector, Values } from '../core/sparse-vector.js';
+import { isStoredInteger, type StoredVector, type Values } from '../core/sparse-vector.js';
 import type { ShardCandidate, ShardSentence } from '../records.js';
 import { MsgpackWriter, type Decoded } from './msgpack.js';
 
@@ -35,12 +39,12 @@ export type ValueType = '<i1' | '<i2' | '<i4' | '<f4' | '<f8';
 
 const encoder = new TextEncoder();
 const KEY = Object.fromEntries(
-  ['id', 'pos', 'fold', 'gold', 'len', 'flag', 'ref', 'cands', 'score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype'].map((k) => [k, encoder.encode(k)]),
+  ['id', 'pos', 'fold', 'gold', 'len', 'flag', 'ref', 'cands', 'score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype', 'ridx', 'rval', 'rdtype'].map((k) => [k, encoder.encode(k)]),
 );
 const DTYPE = Object.fromEntries((['<i1', '<i2', '<i4', '<f4', '<f8'] as const).map((t) => [t, encoder.encode(t)])) as Record<ValueType, Uint8Array>;
 
-/** The narrowest type that holds every value exactly. */
-export function narrowestType(val: ArrayLike<number>): ValueType {
+/** The narrowest type that holds every value exactly (`real`: only float types). */
+export function narrowestType(val: ArrayLike<number>, real = false): ValueType {
   let ints = true;
   let f32 = true;
   let lo = 0;
@@ -52,6 +56,7 @@ export function narrowestType(val: ArrayLike<number>): ValueType {
     if (v < lo) lo = v;
     if (v > hi) hi = v;
   }
+  if (real) return f32 ? '<f4' : '<f8';
   if (ints && lo >= -128 && hi <= 127) return '<i1';
   if (ints && lo >= -32768 && hi <= 32767) return '<i2';
   if (ints && lo >= -2147483648 && hi <= 2147483647) return '<i4';
@@ -68,14 +73,52 @@ function typed(val: ArrayLike<number>, t: ValueType): Values {
   }
 }
 
+let intIdx = new Uint32Array(1024);
+let intVal = new Float64Array(1024);
+let realIdx = new Uint32Array(64);
+let realVal = new Float64Array(64);
+
+/** Writes the six keys of a vector: its integer part and its real part, each narrowed. */
 function writeVector(w: MsgpackWriter, idx: Uint32Array, val: ArrayLike<number>): void {
-  const t = narrowestType(val);
+  const n = idx.length;
+  if (intIdx.length < n) {
+    intIdx = new Uint32Array(n * 2);
+    intVal = new Float64Array(n * 2);
+  }
+  let a = 0;
+  let b = 0;
+  for (let k = 0; k < n; k++) {
+    const v = val[k];
+    if (isStoredInteger(v)) {
+      intIdx[a] = idx[k];
+      intVal[a++] = v;
+    } else {
+      if (b === realIdx.length) {
+        const ri = new Uint32Array(b * 2);
+        ri.set(realIdx);
+        realIdx = ri;
+        const rv = new Float64Array(b * 2);
+        rv.set(realVal);
+        realVal = rv;
+      }
+      realIdx[b] = idx[k];
+      realVal[b++] = v;
+    }
+  }
+  const ti = narrowestType(intVal.subarray(0, a));
+  const tr = narrowestType(realVal.subarray(0, b), true);
   w.strBytes(KEY.idx);
-  w.bin(idx);
+  w.bin(intIdx.subarray(0, a));
   w.strBytes(KEY.val);
-  w.bin(typed(val, t));
+  w.bin(typed(intVal.subarray(0, a), ti));
   w.strBytes(KEY.dtype);
-  w.strBytes(DTYPE[t]);
+  w.strBytes(DTYPE[ti]);
+  w.strBytes(KEY.ridx);
+  w.bin(realIdx.subarray(0, b));
+  w.strBytes(KEY.rval);
+  w.bin(typed(realVal.subarray(0, b), tr));
+  w.strBytes(KEY.rdtype);
+  w.strBytes(DTYPE[tr]);
 }
 
 /** What the encoder takes: vectors with plain float64 values (narrowed here). */
@@ -110,13 +153,13 @@ export function encodeSentence(w: MsgpackWriter, s: SentenceToEncode): void {
   w.strBytes(KEY.ref);
   if (s.ref === null) w.nil();
   else {
-    w.mapHeader(3);
+    w.mapHeader(6);
     writeVector(w, s.ref.idx, s.ref.val);
   }
   w.strBytes(KEY.cands);
   w.arrayHeader(s.cands.length);
   for (const c of s.cands) {
-    w.mapHeader(7);
+    w.mapHeader(10);
     w.strBytes(KEY.score);
     w.float64(c.score);
     w.strBytes(KEY.rank);
@@ -165,17 +208,24 @@ function int(m: Map_, key: string, where: string, min = 0): number {
   return v as number;
 }
 
-function vector(m: Map_, where: string): StoredVector {
-  const idx = m.idx;
-  const val = m.val;
-  const t = m.dtype;
-  if (!(idx instanceof Uint8Array) || idx.byteLength % 4 !== 0) bad(`${where}: expected \`idx\` to be bin data of uint32 values`);
-  if (typeof t !== 'string' || !(t in WIDTH)) bad(`${where}: expected \`dtype\` to be one of ${Object.keys(WIDTH).map((k) => `\`${k}\``).join(', ')}, got ${JSON.stringify(t)}`);
+function part(m: Map_, where: string, ik: string, vk: string, tk: string, real: boolean): { idx: Uint32Array; val: Values } {
+  const idx = m[ik];
+  const val = m[vk];
+  const t = m[tk];
+  if (!(idx instanceof Uint8Array) || idx.byteLength % 4 !== 0) bad(`${where}: expected \`${ik}\` to be bin data of uint32 values`);
+  const allowed = real ? ['<f4', '<f8'] : ['<i1', '<i2', '<i4'];
+  if (typeof t !== 'string' || !allowed.includes(t)) bad(`${where}: expected \`${tk}\` to be one of ${allowed.map((k) => `\`${k}\``).join(', ')}, got ${JSON.stringify(t)}`);
   const width = WIDTH[t as ValueType];
-  if (!(val instanceof Uint8Array) || val.byteLength !== (idx as Uint8Array).byteLength / 4 * width) bad(`${where}: expected \`val\` to hold one ${t} value per index`);
+  if (!(val instanceof Uint8Array) || val.byteLength !== (idx as Uint8Array).byteLength / 4 * width) bad(`${where}: expected \`${vk}\` to hold one ${t} value per index`);
   const indices = view(idx as Uint8Array, 4, (b, o, n) => new Uint32Array(b, o, n));
-  for (let k = 1; k < indices.length; k++) if (indices[k] <= indices[k - 1]) bad(`${where}: expected indices in ascending order, got ${indices[k - 1]} before ${indices[k]}`);
+  for (let k = 1; k < indices.length; k++) if (indices[k] <= indices[k - 1]) bad(`${where}: expected \`${ik}\` in ascending order, got ${indices[k - 1]} before ${indices[k]}`);
   return { idx: indices, val: valuesOf(val as Uint8Array, t as ValueType) };
+}
+
+function vector(m: Map_, where: string): StoredVector {
+  const a = part(m, where, 'idx', 'val', 'dtype', false);
+  const b = part(m, where, 'ridx', 'rval', 'rdtype', true);
+  return { idx: a.idx, val: a.val, ridx: b.idx, rval: b.val };
 }
 
 /**

@@ -8,7 +8,7 @@
 import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { baseChoice, oracleChoice, sentenceF1 } from '../core/f1-table.js';
-import { addVectors, type SparseVector } from '../core/sparse-vector.js';
+import { addVectors, storedLength, type SparseVector } from '../core/sparse-vector.js';
 import { parseNames } from '../formats/names-file.js';
 import { readManifest, readShardDir } from '../io/read-shards.js';
 import type { ShardSentence } from '../records.js';
@@ -74,7 +74,7 @@ export async function inspectShards(o: InspectShardOptions, print: (line: string
     const b = baseChoice(s);
     const k = oracleChoice(s);
     const f = (j: number) => (j < 0 ? '-' : (100 * sentenceF1(s.gold, s.cands[j])).toFixed(1));
-    const stored = (s.ref?.idx.length ?? 0) + s.cands.reduce((a, c) => a + c.diff.idx.length, 0);
+    const stored = (s.ref ? storedLength(s.ref) : 0) + s.cands.reduce((a, c) => a + storedLength(c.diff), 0);
     await print(`${s.id.padEnd(14)} ${String(s.fold ?? '-').padStart(4)} ${String(s.len).padStart(5)} ${String(s.cands.length).padStart(5)} ${f(b).padStart(7)} ${f(k).padStart(9)} ${(k < 0 ? '' : `(${s.cands[k].rank})`).padStart(6)} ${String(stored).padStart(7)}`);
   }
   if (o.id !== undefined && shown === 0) {
@@ -90,7 +90,7 @@ function sentenceLines(s: ShardSentence, names: Map<number, string[]> | undefine
   print(`sentence ${s.id}: fold ${s.fold ?? '-'}, ${s.len} words, ${s.gold} gold brackets, ${s.cands.length} candidates${s.flag ? `, ${s.flag}` : ''}`);
   const vectors = absoluteVectors(s);
   s.cands.forEach((c, k) => {
-    print(`  rank ${c.rank}: score ${c.score}, matched ${c.matched} of ${c.test} (F1 ${(100 * sentenceF1(s.gold, c)).toFixed(1)}), ${vectors[k].idx.length} features stored, ${c.diff.idx.length} differ from the reference`);
+    print(`  rank ${c.rank}: score ${c.score}, matched ${c.matched} of ${c.test} (F1 ${(100 * sentenceF1(s.gold, c)).toFixed(1)}), ${vectors[k].idx.length} features stored, ${storedLength(c.diff)} differ from the reference`);
     if (!names) return;
     const v = vectors[k];
     for (let j = 0; j < v.idx.length; j++) print(`      ${String(v.idx[j]).padStart(8)} ${String(v.val[j]).padStart(10)}  ${(names.get(v.idx[j]) ?? []).join(' | ')}`);

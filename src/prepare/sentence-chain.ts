@@ -10,7 +10,7 @@
 import { DataError } from '../core/errors.js';
 import { createVocabulary, type Vocabulary } from '../core/interner.js';
 import type { Tree } from '../core/tree.js';
-import type { SentenceVectors } from '../features/extract-vectors.js';
+import type { SentenceVectors, VectorExtractor } from '../features/extract-vectors.js';
 import type { Pipeline } from '../pipeline/pipeline.js';
 import type { CandidateText, SentenceJob, SentenceResult } from '../records.js';
 import { encodeShard } from '../stages/encode-shard.js';
@@ -34,6 +34,8 @@ export function createFeaturiser(pipeline: Pipeline) {
 
 export interface SentenceChain {
   run(job: SentenceJob): SentenceResult;
+  /** The extractor (its `work` counters feed the benchmark). */
+  extractor: VectorExtractor;
   /** Distinct canonical keys seen so far (only when the pipeline keeps names). */
   seenKeys(): string[];
 }
@@ -75,5 +77,5 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
       throw e;
     }
   };
-  return { run, seenKeys: () => [...(featurise.extractor.names?.keys ?? [])] };
+  return { run, extractor: featurise.extractor, seenKeys: () => [...(featurise.extractor.names?.keys ?? [])] };
 }

@@ -29,6 +29,7 @@ export const ancestors: FeatureTemplate = {
     const gp = piece('ancestors.v1 gp');
     const grand = options.grandparent as boolean;
     return {
+      reach: { depth: 3 },
       node(v, g, sink) {
         const t = v.tree;
         if (v.preterminal[g]) return;

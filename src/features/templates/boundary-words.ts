@@ -25,6 +25,8 @@ export const boundaryWords: FeatureTemplate = {
     const on = PARTS.map((p) => (options.parts as string[]).includes(p));
     const prefixes = PARTS.map((p) => piece(`boundary-words.v1 ${p}`));
     return {
+      // First and last tags lie deep in the subtree; tags outside the span are not local at all.
+      reach: { depth: 0, edgeTags: on[2] || on[3] },
       local: !on[6] && !on[7],
       node(v, i, sink) {
         if (v.preterminal[i]) return;

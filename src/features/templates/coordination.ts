@@ -41,6 +41,7 @@ export const coordination: FeatureTemplate = {
     const [label, kids, len, depth, pair] = ['label', 'kids', 'len', 'depth', 'pair'].map((k) => piece(`coordination.v1 ${k}`));
     const conjuncts: number[] = [];
     return {
+      reach: { depth: 2 },
       node(v, p, sink) {
         if (v.preterminal[p]) return;
         const t = v.tree;

@@ -29,6 +29,7 @@ export const headDeps: FeatureTemplate = {
     const prefixes = KINDS.map((k) => piece(`head-deps.v1 ${k}`));
     const punct = new Set(options.punctuation as string[]);
     return {
+      reach: { depth: 1 },
       node(v, p, sink) {
         if (v.preterminal[p]) return;
         const t = v.tree;

@@ -23,6 +23,7 @@ export const headRules: FeatureTemplate = {
     const kinds: [Uint8Array, boolean][] = [[w, true], [t, false]];
     const on = [options.words as boolean, options.tags as boolean];
     return {
+      reach: { depth: 1 },
       node(v, i, sink) {
         if (v.preterminal[i]) return;
         const tree = v.tree;

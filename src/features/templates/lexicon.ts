@@ -97,6 +97,7 @@ export const lexicon: FeatureTemplate = {
       }
     };
     return {
+      reach: { depth: 2 },
       node(v, i, sink) {
         if (v.preterminal[i]) return;
         const t = v.tree;

@@ -20,6 +20,7 @@ export const rules: FeatureTemplate = {
     const prefix = piece('rules.v1');
     const lexical = options.lexical as boolean;
     return {
+      reach: { depth: 1 },
       node(v, i, sink) {
         if (v.preterminal[i] && !lexical) return;
         sink.begin(prefix).add(labelBytes(v, i));

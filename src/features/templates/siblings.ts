@@ -23,6 +23,7 @@ export const siblings: FeatureTemplate = {
     const n = options.n as number;
     let kids = new Int32Array(32);
     return {
+      reach: { depth: 1 },
       node(v, p, sink) {
         if (v.preterminal[p]) return;
         const t = v.tree;

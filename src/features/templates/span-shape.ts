@@ -23,6 +23,7 @@ export const spanShape: FeatureTemplate = {
     const where = [piece('inner'), piece('initial'), piece('final'), piece('all')];
     const withPos = options.position as boolean;
     return {
+      reach: { depth: 0 },
       node(v, i, sink) {
         if (v.preterminal[i]) return;
         const t = v.tree;
