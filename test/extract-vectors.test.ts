@@ -76,19 +76,34 @@ describe('difference vectors (reference + difference = direct path)', () => {
     }
   });
 
-  it('store nothing for the reference itself, and drop what every candidate shares', () => {
+  it('take the reference from what most candidates share, and store nothing where the list agrees', () => {
     const ex = new VectorExtractor({ templates: [conf('rules.v1')], bits: 20, seed: 0 });
-    const v = ex.sentence(candidates([A, B]));
-    expect(v.diffs[0].idx.length).toBe(0);
+    const v = ex.sentence(candidates([B, A, A]));
+    // A holds the majority: its candidates differ from the reference in nothing.
+    expect([v.diffs[1].idx.length, v.diffs[2].idx.length]).toEqual([0, 0]);
     const idx = (k: string) => bucketOf(murmur3String(k), 20);
     // Shared rules (S → NP VP ., NP → DT NN, PP → TO NP) are not stored; differing ones are.
     for (const shared of ['rules.v1 S NP VP .', 'rules.v1 NP DT NN', 'rules.v1 PP TO NP']) expect(Array.from(v.varying)).not.toContain(idx(shared));
     // B has NP → NP PP and VP → VBD NP where A has VP → VBD NP PP: signed differences of the canonical keys' buckets.
-    const diff = new Map(Array.from(v.diffs[1].idx, (b, k) => [b, v.diffs[1].val[k]]));
+    const diff = new Map(Array.from(v.diffs[0].idx, (b, k) => [b, v.diffs[0].val[k]]));
     const h = (k: string) => murmur3String(k);
     expect(diff.get(idx('rules.v1 NP NP PP'))).toBe(signOf(h('rules.v1 NP NP PP')));
     expect(diff.get(idx('rules.v1 VP VBD NP PP'))).toBe(-signOf(h('rules.v1 VP VBD NP PP')));
     expect(diff.get(idx('rules.v1 VP VBD NP'))).toBe(signOf(h('rules.v1 VP VBD NP')));
+    expect(diff.size).toBe(3);
+    // The reference holds A's values where the list varies.
+    const ref = new Map(Array.from(v.ref!.idx, (b, k) => [b, v.ref!.val[k]]));
+    expect(ref.get(idx('rules.v1 VP VBD NP PP'))).toBe(signOf(h('rules.v1 VP VBD NP PP')));
+    expect(ref.has(idx('rules.v1 NP NP PP'))).toBe(false);
+  });
+
+  it('with no majority, keep the consensus value: each candidate stores what it alone has', () => {
+    const ex = new VectorExtractor({ templates: [conf('rules.v1')], bits: 20, seed: 0 });
+    const v = ex.sentence(candidates([A, B]));
+    const idx = (k: string) => bucketOf(murmur3String(k), 20);
+    expect(Array.from(v.diffs[0].idx).sort()).toEqual([idx('rules.v1 VP VBD NP PP')].sort());
+    expect(Array.from(v.diffs[1].idx).sort((a, b) => a - b)).toEqual([idx('rules.v1 NP NP PP'), idx('rules.v1 VP VBD NP')].sort((a, b) => a - b));
+    expect(v.ref!.idx.length).toBe(0);
   });
 
   it('give one empty reference and no differences for a list whose candidates are all alike', () => {

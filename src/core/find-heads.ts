@@ -108,6 +108,14 @@ export function headChildPosition(tree: Tree, node: number): number {
   return h;
 }
 
+/** The node index of the head child of constituent `node`. */
+export function headChildNode(tree: Tree, node: number): number {
+  const pos = headChildPosition(tree, node);
+  let c = node + 1;
+  for (let k = 0; k < pos; k++) c = tree.end[c];
+  return c;
+}
+
 /** For every node, the node index of its head child (-1 for words). */
 export function headChildren(tree: Tree): Int32Array {
   const out = new Int32Array(tree.size).fill(-1);

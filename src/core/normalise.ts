@@ -49,16 +49,25 @@ function strippedId(vocab: Vocabulary, id: number): number {
 }
 
 /**
- * Returns the normalised tree (a new tree; the input is not changed). Returns
- * null when nothing is left (a tree of empty elements only).
+ * Returns the normalised tree: the input itself when nothing changes, else a
+ * new tree (the input is never changed). Returns null when nothing is left
+ * (a tree of empty elements only).
  */
 export function normaliseTree(tree: Tree, options: NormaliseOptions = {}, builder?: TreeBuilder): Tree | null {
   const stripTags = options.stripTags ?? true;
   const dropEmpty = options.dropEmpty ?? true;
   const vocab = tree.vocab;
   const noneId = dropEmpty ? vocab.labels.lookup(options.emptyLabel ?? '-NONE-') : -1;
-  // Keep a node iff it is a kept word or a constituent with a kept word below.
   const n = tree.size;
+  // Most trees (every parser output) have nothing to strip or drop: then the tree itself is the answer.
+  let unchanged = true;
+  for (let i = 0; i < n && unchanged; i++) {
+    if (tree.isWord[i]) continue;
+    const id = tree.sym[i];
+    if (id === noneId || (stripTags && strippedId(vocab, id) !== id)) unchanged = false;
+  }
+  if (unchanged) return tree;
+  // Keep a node iff it is a kept word or a constituent with a kept word below.
   const keep = new Uint8Array(n);
   for (let i = n - 1; i >= 0; i--) {
     if (tree.isWord[i]) {

@@ -38,9 +38,9 @@ import { NameBook } from '../core/name-book.js';
 import { SparseAccumulator } from '../core/sparse-accumulator.js';
 import type { SparseVector } from '../core/sparse-vector.js';
 import type { Tree } from '../core/tree.js';
-import { candidateView } from './candidate-view.js';
-import { ListMerger, sortAndSum } from './merge-lists.js';
-import { identifyNodes, KINDS, kindOf, SequenceIds } from './subtree-ids.js';
+import { ListMerger, sortAndSum, UnionCounter } from './merge-lists.js';
+import { headChildNode } from '../core/find-heads.js';
+import { KINDS, kindOf, NodeIdentifier } from './subtree-ids.js';
 import type { CandidateView, ConfiguredTemplate } from './template.js';
 
 export interface ExtractorOptions {
@@ -96,12 +96,11 @@ export class VectorExtractor {
   /** Local node templates, grouped by the identity kind their reach needs. */
   private readonly groups: Group[] = [];
   private readonly wanted: boolean[] = new Array(KINDS).fill(false);
-  private readonly maxDepth: number;
   private readonly context: { t: ConfiguredTemplate; index: number }[] = [];
   private readonly whole: { t: ConfiguredTemplate; index: number }[] = [];
   private readonly dropUniform: boolean;
   private readonly nTemplates: number;
-  private readonly ids = new SequenceIds();
+  private readonly identifier: NodeIdentifier;
 
   // Node identities of every candidate, per group: nodeIds[g][c].
   private nodeIds: Int32Array[][] = [];
@@ -146,7 +145,10 @@ export class VectorExtractor {
 
   private readonly nRef = new SparseAccumulator();
   private readonly tCand = new SparseAccumulator();
-  private readonly nnz = new SparseAccumulator();
+  private readonly union = new UnionCounter();
+  private vBuf = new Uint32Array(1024);
+  private shiftIdx = new Uint32Array(64);
+  private shiftVal = new Float64Array(64);
   private readonly fired = new SparseAccumulator();
 
   constructor(readonly options: ExtractorOptions) {
@@ -171,7 +173,7 @@ export class VectorExtractor {
       }
       g.templates.push({ t, index });
     });
-    this.maxDepth = maxDepth;
+    this.identifier = new NodeIdentifier(this.wanted, maxDepth);
     this.dropUniform = options.dropUniform ?? true;
     this.nTemplates = options.templates.length;
   }
@@ -195,7 +197,7 @@ export class VectorExtractor {
     const w = this.work;
     w.lists++;
     w.candidates += m;
-    w.identities += this.ids.count;
+    w.identities += this.identifier.ids.count;
     w.computed += this.fn;
     w.stored += ref.idx.length;
     for (const d of diffs) w.stored += d.idx.length;
@@ -207,8 +209,9 @@ export class VectorExtractor {
   /** Views and node identities of every candidate; owners of each identity. */
   private identify(cands: readonly CandidateInput[]): CandidateView[] {
     const m = cands.length;
-    const ids = this.ids;
-    ids.reset(cands[0].tree.wordNodes.length);
+    const idf = this.identifier;
+    const ids = idf.ids;
+    idf.reset(cands[0].tree.wordNodes.length);
     const views: CandidateView[] = new Array(m);
     let maxSize = 0;
     for (const c of cands) maxSize = Math.max(maxSize, c.tree.size);
@@ -218,8 +221,7 @@ export class VectorExtractor {
     while (this.nodeIds.length < G) this.nodeIds.push([]);
     for (let c = 0; c < m; c++) {
       const t = cands[c].tree;
-      views[c] = candidateView(t, cands[c].score, cands[c].rank);
-      identifyNodes(views[c], ids, this.wanted, this.maxDepth, this.kindBuffers);
+      views[c] = idf.identify(t, cands[c].score, cands[c].rank, this.kindBuffers, headChildNode);
       for (let g = 0; g < G; g++) {
         const list = this.nodeIds[g];
         if (list.length <= c || list[c].length < t.size) list[c] = new Int32Array(Math.max(t.size, 64));
@@ -281,7 +283,7 @@ export class VectorExtractor {
         }
       }
     }
-    this.stamp.fill(-1, 0, this.ids.count);
+    this.stamp.fill(-1, 0, this.identifier.ids.count);
   }
 
   /**
@@ -363,85 +365,77 @@ export class VectorExtractor {
   }
 
   /**
-   * The reference — per bucket, the value most candidates share; ties to the
-   * best-ranked holder — and each candidate's difference from it. Starting
-   * from the consensus's node values r, a candidate that does not touch a
-   * bucket holds r there; only where at least half the candidates touch a
-   * bucket can another value be the most shared, so only those are counted.
+   * The reference — per bucket, the value a strict majority of the
+   * candidates share, else the consensus's node value — and each candidate's
+   * difference from it. A candidate that does not touch a bucket holds the
+   * consensus value there, so only buckets that more than half the
+   * candidates touch can get another value.
    */
   private fromReference(m: number, from: Int32Array): { ref: SparseVector; diffs: SparseVector[]; varying: Uint32Array } {
-    const { dIdx, dVal, nnz } = this;
+    const { dIdx, dVal } = this;
     const total = from[m];
-    nnz.clear();
-    for (let k = 0; k < total; k++) nnz.add(dIdx[k], 1);
-    const touched = nnz.sortedBuckets().slice();
-    // Heavy buckets, numbered: hIndex holds index + 1 per bucket.
-    const hIndex = this.fired;
-    hIndex.clear();
-    let nHeavy = 0;
-    for (let k = 0; k < touched.length; k++) if (nnz.get(touched[k]) * 2 >= m) hIndex.add(touched[k], ++nHeavy);
-    const shiftIdx = new Uint32Array(nHeavy);
-    const shiftVal = new Float64Array(nHeavy);
+    // The union of the lists, with how many candidates touch each bucket.
+    const nu = this.union.count(dIdx, from, m);
+    const ub = this.union.buckets;
+    const uc = this.union.counts;
+    let shiftIdx = this.shiftIdx;
+    let shiftVal = this.shiftVal;
     let nShift = 0;
-    if (nHeavy > 0) {
-      // Each heavy bucket's (value, candidate) pairs, in candidate order.
-      const hAt = new Int32Array(nHeavy + 1);
-      const hb = new Uint32Array(nHeavy);
-      for (let k = 0; k < touched.length; k++) {
-        const h = hIndex.get(touched[k]);
-        if (h > 0) {
-          hb[h - 1] = touched[k];
-          hAt[h] = nnz.get(touched[k]);
-        }
-      }
-      for (let h = 0; h < nHeavy; h++) hAt[h + 1] += hAt[h];
-      const vals = new Float64Array(hAt[nHeavy]);
-      const who = new Int32Array(hAt[nHeavy]);
-      const fill = hAt.slice(0, nHeavy);
-      for (let c = 0; c < m; c++) {
-        for (let k = from[c]; k < from[c + 1]; k++) {
-          const h = hIndex.get(dIdx[k]);
-          if (h === 0) continue;
-          vals[fill[h - 1]] = dVal[k];
-          who[fill[h - 1]++] = c;
-        }
-      }
-      for (let h = 0; h < nHeavy; h++) {
-        const a = hAt[h];
-        const e = hAt[h + 1];
-        // The value 0 (untouched): held by m − n candidates, first by the first index not listed.
-        let zeroFirst = 0;
-        for (let k = a; k < e && who[k] === zeroFirst; k++) zeroFirst++;
-        let best = 0;
-        let bestCount = m - (e - a);
-        let bestFirst = zeroFirst;
-        for (let k = a; k < e; k++) {
-          const v = vals[k];
-          let seenBefore = false;
-          for (let j = a; j < k; j++) {
-            if (vals[j] === v) {
-              seenBefore = true;
-              break;
-            }
-          }
-          if (seenBefore) continue;
-          let n = 0;
-          for (let j = k; j < e; j++) if (vals[j] === v) n++;
-          if (n > bestCount || (n === bestCount && who[k] < bestFirst)) {
-            best = v;
-            bestCount = n;
-            bestFirst = who[k];
+    // Buckets most candidates touch: a value there may hold a strict majority (Boyer–Moore vote, then a count).
+    const heavy: number[] = [];
+    for (let k = 0; k < nu; k++) if (uc[k] * 2 > m) heavy.push(ub[k]);
+    let uniform: number[] = [];
+    if (heavy.length > 0) {
+      const H = heavy.length;
+      const cand = new Float64Array(H);
+      const votes = new Int32Array(H);
+      const agree = new Int32Array(H);
+      for (let pass = 0; pass < 2; pass++) {
+        for (let c = 0; c < m; c++) {
+          // Walk the candidate's sorted list against the sorted heavy buckets.
+          let i = from[c];
+          const e = from[c + 1];
+          for (let h = 0; h < H && i < e; h++) {
+            const b = heavy[h];
+            while (i < e && dIdx[i] < b) i++;
+            if (i >= e || dIdx[i] !== b) continue;
+            const v = dVal[i];
+            if (pass === 0) {
+              if (votes[h] === 0) {
+                cand[h] = v;
+                votes[h] = 1;
+              } else votes[h] += v === cand[h] ? 1 : -1;
+            } else if (votes[h] > 0 && v === cand[h]) agree[h]++;
           }
         }
-        if (best !== 0) {
-          shiftIdx[nShift] = hb[h];
-          shiftVal[nShift++] = best;
+      }
+      for (let h = 0; h < H; h++) {
+        if (agree[h] * 2 <= m) continue;
+        if (nShift === shiftIdx.length) {
+          shiftIdx = grown(shiftIdx, nShift + 1);
+          shiftVal = grown(shiftVal, nShift + 1);
         }
+        shiftIdx[nShift] = heavy[h];
+        shiftVal[nShift++] = cand[h];
+        // Every candidate has this value: the bucket does not vary at all.
+        if (agree[h] === m) uniform.push(heavy[h]);
       }
     }
-    hIndex.clear();
-    // Differences from the reference, merged per candidate.
-    const need = total + m * nShift + touched.length + this.nRef.size;
+    if (this.vBuf.length < nu) this.vBuf = new Uint32Array(nu * 2);
+    let nVaries = 0;
+    for (let k = 0, u = 0; k < nu; k++) {
+      if (u < uniform.length && ub[k] === uniform[u]) {
+        u++;
+        continue;
+      }
+      this.vBuf[nVaries++] = ub[k];
+    }
+    uniform = [];
+    this.shiftIdx = shiftIdx;
+    this.shiftVal = shiftVal;
+    const varies = this.vBuf.slice(0, nVaries);
+    // Differences from the reference: (candidate − consensus) − (reference − consensus), merged per candidate.
+    const need = total + m * nShift + nVaries + nShift + this.nRef.size;
     if (need > this.oIdx.length) {
       this.oIdx = grown(this.oIdx, need);
       this.oVal = grown(this.oVal, need);
@@ -455,6 +449,13 @@ export class VectorExtractor {
       let i = from[c];
       const iEnd = from[c + 1];
       let j = 0;
+      if (nShift === 0) {
+        for (; i < iEnd; i++) {
+          oIdx[out] = dIdx[i];
+          oVal[out++] = dVal[i];
+        }
+        continue;
+      }
       while (i < iEnd || j < nShift) {
         let b: number;
         let v: number;
@@ -475,10 +476,6 @@ export class VectorExtractor {
       }
     }
     starts[m] = out;
-    // What varies: the buckets some difference from the reference touches.
-    nnz.clear();
-    for (let k = 0; k < out; k++) nnz.add(oIdx[k], 1);
-    const varies = nnz.sortedBuckets().slice();
     // The stored reference: the consensus's values, shifted.
     const refFrom = out;
     const buckets = this.dropUniform ? varies : this.refSupport(varies, shiftIdx.subarray(0, nShift));
@@ -529,7 +526,7 @@ export class VectorExtractor {
     for (let k = 0; k < buckets.length; k++) {
       const b = buckets[k];
       let bits = seen.get(b);
-      const varies = this.nnz.get(b) !== 0;
+      const varies = contains(varying, b);
       for (let t = 0; bits !== 0; t++, bits >>>= 1) {
         if ((bits & 1) === 0) continue;
         counts[2 * t]++;
@@ -537,7 +534,6 @@ export class VectorExtractor {
       }
     }
     seen.clear();
-    void varying;
   }
 
   /** Computes and keeps the node features of identity `id` (once per list). */
@@ -557,21 +553,27 @@ export class VectorExtractor {
       this.fv = grown(this.fv, this.fn + n);
       this.ft = grown(this.ft, this.fn + n);
     }
-    this.fb.set(sink.buckets.subarray(0, n), this.fn);
-    this.fv.set(sink.values.subarray(0, n), this.fn);
-    this.ft.set(sink.templates.subarray(0, n), this.fn);
-    this.featFrom[id] = this.fn;
-    this.fn += n;
-    this.featTo[id] = this.fn;
     if (this.sn + n > this.sb.length) {
       this.sb = grown(this.sb, this.sn + n);
       this.sv = grown(this.sv, this.sn + n);
     }
-    this.sb.set(sink.buckets.subarray(0, n), this.sn);
-    this.sv.set(sink.values.subarray(0, n), this.sn);
-    for (let k = 0; k < n; k++) if (!Number.isInteger(sink.values[k])) this.nodeReal = true;
+    // Loops, not set(subarray): these lists are short and subarray views cost an allocation each.
+    const lb = sink.buckets;
+    const lv = sink.values;
+    const lt = sink.templates;
+    const { fb, fv, ft, sb, sv } = this;
+    for (let k = 0, f = this.fn, g = this.sn; k < n; k++, f++, g++) {
+      const v = lv[k];
+      fb[f] = sb[g] = lb[k];
+      fv[f] = sv[g] = v;
+      ft[f] = lt[k];
+      if (!this.nodeReal && !Number.isInteger(v)) this.nodeReal = true;
+    }
+    this.featFrom[id] = this.fn;
+    this.fn += n;
+    this.featTo[id] = this.fn;
     this.sFrom[id] = this.sn;
-    this.sn = sortAndSum(this.sb, this.sv, this.sn, this.sn + n);
+    this.sn = sortAndSum(sb, sv, this.sn, this.sn + n);
     this.sTo[id] = this.sn;
   }
 
@@ -620,4 +622,18 @@ function valueAt(idx: Uint32Array, val: Float64Array, n: number, b: number): num
     else hi = mid - 1;
   }
   return 0;
+}
+
+/** True when the ascending array holds b (binary search). */
+function contains(sorted: Uint32Array, b: number): boolean {
+  let lo = 0;
+  let hi = sorted.length - 1;
+  while (lo <= hi) {
+    const mid = (lo + hi) >> 1;
+    const x = sorted[mid];
+    if (x === b) return true;
+    if (x < b) lo = mid + 1;
+    else hi = mid - 1;
+  }
+  return false;
 }

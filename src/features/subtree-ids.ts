@@ -16,6 +16,7 @@
  * pool; keys are compared element by element, never only by hash, so two
  * different nodes can never share an identity.
  */
+import type { Tree } from '../core/tree.js';
 import type { CandidateView } from './template.js';
 
 export class SequenceIds {
@@ -141,47 +142,147 @@ export const KINDS = 8;
 export const kindOf = (depth: number, edgeTags: boolean): number => (edgeTags ? 4 : 0) + depth;
 
 /**
- * Writes the identities of every node of a candidate for the kinds asked
- * (`wanted[k]`), into `out[k]` (each of at least tree.size entries). Words
- * get their position at every kind.
+ * Identifies the nodes of the candidates of one list and builds each
+ * candidate's view (head child, head word, preterminal flag, height).
+ *
+ * Every node first gets its whole-subtree identity (label and children's
+ * identities). Everything else about a node — its view and its identities at
+ * every level — depends only on its subtree, so it is computed once per
+ * distinct subtree in the list and copied for every later candidate that has
+ * the same subtree: the work per candidate follows what is new in it.
  */
-export function identifyNodes(view: CandidateView, ids: SequenceIds, wanted: readonly boolean[], maxDepth: number, out: Int32Array[]): void {
-  const t = view.tree;
-  const { sym, start, stop, end, parent, isWord, wordNodes } = t;
-  const hw = view.headWord;
-  const height = view.height;
-  const r0 = out[0];
-  for (let i = t.size - 1; i >= 0; i--) {
-    if (isWord[i]) {
-      for (let k = 0; k < KINDS; k++) if (wanted[k] || k <= maxDepth) out[k][i] = start[i];
-      continue;
-    }
-    const h = hw[i];
-    ids.begin();
-    ids.push(-1); // kind tag: atoms
-    ids.push(sym[i]);
-    ids.push(start[i]);
-    ids.push(stop[i]);
-    ids.push(start[h]);
-    ids.push(sym[parent[h]]);
-    ids.push(height[i]);
-    r0[i] = ids.id();
-    for (let d = 1; d <= maxDepth; d++) {
-      const below = out[d - 1];
+export class NodeIdentifier {
+  readonly ids = new SequenceIds();
+  private readonly kinds: number[];
+  // Per whole-subtree identity: whether known, head child position, head word position, height, and one identity per kind.
+  private known = new Uint8Array(1024);
+  private headPos = new Int32Array(1024);
+  private headAt = new Int32Array(1024);
+  private heightOf = new Int32Array(1024);
+  private level = new Int32Array(1024 * KINDS);
+  private full = new Int32Array(256);
+
+  constructor(private readonly wanted: readonly boolean[], private readonly maxDepth: number) {
+    this.kinds = [];
+    for (let k = 0; k < KINDS; k++) if (wanted[k] || k <= maxDepth) this.kinds.push(k);
+  }
+
+  reset(words: number): void {
+    this.ids.reset(words);
+    this.known.fill(0);
+  }
+
+  /**
+   * The view of `tree` and its node identities per kind (into out[kind],
+   * each at least tree.size long).
+   */
+  identify(tree: Tree, score: number, rank: number, out: Int32Array[], headOf: (tree: Tree, node: number) => number): CandidateView {
+    const { sym, start, stop, end, parent, isWord, wordNodes } = tree;
+    const n = tree.size;
+    const ids = this.ids;
+    const headChild = new Int32Array(n).fill(-1);
+    const headWord = new Int32Array(n);
+    const preterminal = new Uint8Array(n);
+    const height = new Int32Array(n);
+    if (this.full.length < n) this.full = new Int32Array(n * 2);
+    const full = this.full;
+    for (let i = n - 1; i >= 0; i--) {
+      if (isWord[i]) {
+        full[i] = start[i];
+        headWord[i] = i;
+        for (const k of this.kinds) out[k][i] = start[i];
+        continue;
+      }
       ids.begin();
-      ids.push(-1 - d);
-      ids.push(r0[i]);
-      for (let c = i + 1; c < end[i]; c = end[c]) ids.push(below[c]);
-      out[d][i] = ids.id();
-    }
-    for (let d = 0; d <= 3; d++) {
-      if (!wanted[4 + d]) continue;
+      ids.push(-100);
+      ids.push(sym[i]);
+      let pre = 1;
+      for (let c = i + 1; c < end[i]; c = end[c]) {
+        ids.push(full[c]);
+        if (!isWord[c]) pre = 0;
+      }
+      const f = ids.id();
+      full[i] = f;
+      preterminal[i] = pre;
+      this.grow(f);
+      if (this.known[f]) {
+        // A subtree seen before in this list: copy what it determines.
+        let c = i + 1;
+        for (let k = this.headAt[f]; k > 0; k--) c = end[c];
+        headChild[i] = c;
+        headWord[i] = wordNodes[this.headPos[f]];
+        height[i] = this.heightOf[f];
+        const base = f * KINDS;
+        for (const k of this.kinds) out[k][i] = this.level[base + k];
+        continue;
+      }
+      // New subtree: its head, height, and identities at each level.
+      const hc = headOf(tree, i);
+      let pos = 0;
+      let c = i + 1;
+      let h = 0;
+      for (; c < end[i]; c = end[c]) if (height[c] > h) h = height[c];
+      c = i + 1;
+      while (c !== hc) {
+        c = end[c];
+        pos++;
+      }
+      headChild[i] = hc;
+      headWord[i] = headWord[hc];
+      height[i] = h + 1;
+      const hw = headWord[i];
       ids.begin();
-      ids.push(-10 - d);
-      ids.push(out[d][i]);
-      ids.push(sym[parent[wordNodes[start[i]]]]);
-      ids.push(sym[parent[wordNodes[stop[i] - 1]]]);
-      out[4 + d][i] = ids.id();
+      ids.push(-1);
+      ids.push(sym[i]);
+      ids.push(start[i]);
+      ids.push(stop[i]);
+      ids.push(start[hw]);
+      ids.push(sym[parent[hw]]);
+      ids.push(h + 1);
+      const r0 = ids.id();
+      out[0][i] = r0;
+      for (let d = 1; d <= this.maxDepth; d++) {
+        const below = out[d - 1];
+        ids.begin();
+        ids.push(-1 - d);
+        ids.push(r0);
+        for (let k = i + 1; k < end[i]; k = end[k]) ids.push(below[k]);
+        out[d][i] = ids.id();
+      }
+      for (let d = 0; d <= 3; d++) {
+        if (!this.wanted[4 + d]) continue;
+        ids.begin();
+        ids.push(-10 - d);
+        ids.push(out[d][i]);
+        ids.push(sym[parent[wordNodes[start[i]]]]);
+        ids.push(sym[parent[wordNodes[stop[i] - 1]]]);
+        out[4 + d][i] = ids.id();
+      }
+      this.grow(f);
+      this.known[f] = 1;
+      this.headAt[f] = pos;
+      this.headPos[f] = start[hw];
+      this.heightOf[f] = h + 1;
+      const base = f * KINDS;
+      for (const k of this.kinds) this.level[base + k] = out[k][i];
     }
+    return { tree, headChild, headWord, preterminal, height, score, rank };
+  }
+
+  private grow(f: number): void {
+    if (f < this.known.length) return;
+    let size = this.known.length * 2;
+    while (size <= f) size *= 2;
+    const k = new Uint8Array(size);
+    k.set(this.known);
+    this.known = k;
+    for (const name of ['headPos', 'headAt', 'heightOf'] as const) {
+      const a = new Int32Array(size);
+      a.set(this[name]);
+      this[name] = a;
+    }
+    const l = new Int32Array(size * KINDS);
+    l.set(this.level);
+    this.level = l;
   }
 }
