@@ -13,7 +13,8 @@
  *     marks, in this order, each added once if present:
  *            `9`   a digit (`99` if the word is only digits and . , : /);
  *            `-`   a hyphen;
- *            `.`   other ASCII punctuation;
+ *            `.`   other ASCII punctuation (not in a `99` word, whose
+ *                  . , : / belong to the number);
  *   suffix = the longest of SUFFIXES ending the lower-cased word, tried only
  *            when the case is `a`, `Aa`, `Aa1` or `aA` and the word is at
  *            least two characters longer than the suffix.
@@ -81,9 +82,10 @@ function shapeParts(word: string, first: boolean): { kind: string; marks: string
   else if (other > 0 || upper > 0) kind = 'x';
   else kind = '';
   let marks = '';
-  if (digit) marks += onlyNumber ? '99' : '9';
+  const number = digit && onlyNumber;
+  if (digit) marks += number ? '99' : '9';
   if (hyphen) marks += '-';
-  if (punct) marks += '.';
+  if (punct && !number) marks += '.';
   return { kind, marks };
 }
 
