@@ -68,10 +68,13 @@ export class Chart {
     const top = this.top;
     const botList = this.botList;
     const botCount = this.botCount;
-    const byLeftStart = g.byLeftStart;
-    const blRight = g.blRight;
+    const pairStart = g.pairStart;
+    const pairRight = g.pairRight;
+    const pairRuleStart = g.pairRuleStart;
     const blParent = g.blParent;
     const blScore = g.blScore;
+    const topList = this.topList;
+    const topCount = this.topCount;
 
     // Span 1: lexical rules.
     for (let k = 0; k < n; k++) {
@@ -88,7 +91,8 @@ export class Chart {
       this.closeCell(cell, beam);
     }
 
-    // Longer spans: every split, every left symbol, its rules; the right child is looked up.
+    // Longer spans: every split, every left symbol, its (left, right) pairs; the right
+    // child is looked up once per pair, then each rule of the pair is scored.
     for (let span = 2; span <= n; span++) {
       for (let i = 0; i + span <= n; i++) {
         const j = i + span;
@@ -99,19 +103,24 @@ export class Chart {
           const lc = cellIndex(i, m);
           const lbase = lc * S;
           const rbase = cellIndex(m, j) * S;
-          const lcount = this.topCount[lc];
+          const lcount = topCount[lc];
           for (let t = 0; t < lcount; t++) {
-            const b = this.topList[lbase + t];
+            const b = topList[lbase + t];
             const lb = top[lbase + b];
-            const rEnd = byLeftStart[b + 1];
-            for (let r = byLeftStart[b]; r < rEnd; r++) {
-              const rc = top[rbase + blRight[r]];
+            const pEnd = pairStart[b + 1];
+            for (let p = pairStart[b]; p < pEnd; p++) {
+              const rc = top[rbase + pairRight[p]];
               if (rc === -Infinity) continue;
-              const s = lb + rc + blScore[r];
-              const a = base + blParent[r];
-              if (s > bot[a]) {
-                if (bot[a] === -Infinity) botList[base + c++] = blParent[r];
-                bot[a] = s;
+              // (left + right) + rule: the order the k-best extractor sums in, so scores agree bit for bit.
+              const lr = lb + rc;
+              const rEnd = pairRuleStart[p + 1];
+              for (let r = pairRuleStart[p]; r < rEnd; r++) {
+                const s = lr + blScore[r];
+                const a = base + blParent[r];
+                if (s > bot[a]) {
+                  if (bot[a] === -Infinity) botList[base + c++] = blParent[r];
+                  bot[a] = s;
+                }
               }
             }
           }

@@ -60,9 +60,15 @@ export class Grammar {
   readonly top: number;
   readonly settings: PcfgSettings;
 
-  // Binary rules grouped by left child: CKY's inner loop walks these.
-  readonly byLeftStart: Int32Array;
-  readonly blRight: Int32Array;
+  /**
+   * Binary rules for CKY's inner loop, grouped by left child B, then by
+   * (B, C) pair: pairs of B are pairStart[B] .. pairStart[B + 1]; pair p has
+   * right child pairRight[p] and rules pairRuleStart[p] .. pairRuleStart[p + 1]
+   * in (blParent, blScore). The right cell is then looked up once per pair.
+   */
+  readonly pairStart: Int32Array;
+  readonly pairRight: Int32Array;
+  readonly pairRuleStart: Int32Array;
   readonly blParent: Int32Array;
   readonly blScore: Float64Array;
   // Binary rules grouped by parent (the data's order): the k-best's hyperedges.
@@ -103,10 +109,24 @@ export class Grammar {
     this.byParentStart = csrStarts(d.binParent, S);
     const order = Array.from({ length: nb }, (_, r) => r);
     order.sort((a, b) => d.binLeft[a] - d.binLeft[b] || d.binRight[a] - d.binRight[b] || d.binParent[a] - d.binParent[b]);
-    this.blRight = Int32Array.from(order, (r) => d.binRight[r]);
     this.blParent = Int32Array.from(order, (r) => d.binParent[r]);
     this.blScore = Float64Array.from(order, (r) => d.binScore[r]);
-    this.byLeftStart = csrStarts(Int32Array.from(order, (r) => d.binLeft[r]), S);
+    const pairLeft: number[] = [];
+    const pairRight: number[] = [];
+    const pairRuleStart: number[] = [];
+    for (let k = 0; k < nb; k++) {
+      const r = order[k];
+      const last = pairLeft.length - 1;
+      if (last < 0 || pairLeft[last] !== d.binLeft[r] || pairRight[last] !== d.binRight[r]) {
+        pairLeft.push(d.binLeft[r]);
+        pairRight.push(d.binRight[r]);
+        pairRuleStart.push(k);
+      }
+    }
+    pairRuleStart.push(nb);
+    this.pairStart = csrStarts(Int32Array.from(pairLeft), S);
+    this.pairRight = Int32Array.from(pairRight);
+    this.pairRuleStart = Int32Array.from(pairRuleStart);
 
     // Unary chains by depth-first search from every symbol.
     const unStart = csrStarts(d.unParent, S);
