@@ -18,6 +18,7 @@ import {
   checkPcfgSettings, decodeGrammar, DEFAULT_PCFG_SETTINGS, encodeGrammar, KBestParser, parseSettingsKey, PcfgTrainer,
   settingsKey, signatureOf, type Grammar, type PcfgSettings,
 } from '../src/parser/index.js';
+import { Chart } from '../src/parser/cky.js';
 import { readFixture } from './helpers/fixtures.js';
 
 const vocab = createVocabulary();
@@ -165,6 +166,23 @@ describe('parser output', () => {
       if (some.length < Math.min(50, all.size)) pruned++;
     }
     expect(pruned).toBeGreaterThan(0);
+  });
+
+  it('parses again without the beam when the beam leaves a sentence no parse', async () => {
+    const trees = await demoTrees();
+    const g = train(trees.slice(0, 1000));
+    const exact = new KBestParser(g);
+    const narrow = new KBestParser(g, { beam: 0.5 });
+    const chart = new Chart(g);
+    let lostByBeam = 0;
+    for (const t of trees.slice(1000)) {
+      const words = yieldOf(t);
+      if (chart.fill(words, 0.5) === -Infinity) lostByBeam++;
+      expect(narrow.parse(words, 5).length).toBeGreaterThan(0);
+      expect(narrow.bestScore(words)).toBeLessThanOrEqual(exact.bestScore(words) + 1e-12);
+    }
+    // The beam alone does leave sentences without a parse, so the fallback was used.
+    expect(lostByBeam).toBeGreaterThan(0);
   });
 });
 

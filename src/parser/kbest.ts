@@ -317,7 +317,8 @@ export interface ParseStats {
  * ordered by their text (code units). To make the cut at k independent of
  * extraction order, derivations tied with the k-th tree's score are drawn
  * too before sorting and cutting. At most k × derivationFactor derivations
- * are drawn. A sentence the grammar cannot parse gives an empty list.
+ * are drawn. A sentence the grammar cannot parse gives an empty list; one
+ * that the beam (if any) leaves without a parse is parsed again without it.
  */
 export class KBestParser {
   private readonly chart: Chart;
@@ -334,14 +335,21 @@ export class KBestParser {
   bestScore(words: readonly string[]): number {
     checkWords(words);
     if (words.length === 0) return -Infinity;
-    return this.chart.fill(words, this.settings.beam);
+    return this.fill(words);
+  }
+
+  /** CKY with the beam; if the beam pruned every derivation away, again without it. */
+  private fill(words: readonly string[]): number {
+    const beam = this.settings.beam;
+    const best = this.chart.fill(words, beam);
+    return best === -Infinity && beam > 0 ? this.chart.fill(words, 0) : best;
   }
 
   parse(words: readonly string[], k: number): ParseResult[] {
     checkWords(words);
     this.lastStats = { derivations: 0, visitedNodes: 0 };
     if (words.length === 0 || !(k >= 1)) return [];
-    if (this.chart.fill(words, this.settings.beam) === -Infinity) return [];
+    if (this.fill(words) === -Infinity) return [];
     const search = new KBestSearch(this.chart, words);
     const root = search.root;
     const cap = Math.min(MAX_RANK, Math.max(k, Math.floor(k * this.settings.derivationFactor)));
