@@ -345,9 +345,10 @@ export class KBestParser {
     return best === -Infinity && beam > 0 ? this.chart.fill(words, 0) : best;
   }
 
-  parse(words: readonly string[], k: number): ParseResult[] {
+  parse(words: readonly string[], kWanted: number): ParseResult[] {
     checkWords(words);
     this.lastStats = { derivations: 0, visitedNodes: 0 };
+    const k = Math.floor(kWanted);
     if (words.length === 0 || !(k >= 1)) return [];
     if (this.fill(words) === -Infinity) return [];
     const search = new KBestSearch(this.chart, words);

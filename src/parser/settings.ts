@@ -58,8 +58,14 @@ export interface PcfgSettings {
   /**
    * Per-cell beam, in natural-log units: after a cell is filled, symbols whose
    * inside score is below the cell's best minus `beam` are dropped. 0 turns
-   * pruning off (exact search). Default 0: exact search is fast enough on
-   * the demo grammar (see DEVELOPERS.md); a large grammar may want ~10.
+   * pruning off (exact search). A sentence the beam leaves with no parse is
+   * parsed again without it. Default 0: the demo grammar parses a 20-word
+   * sentence at 50-best in under 1 ms exactly, and this inside-score beam
+   * buys little elsewhere: on the large stress grammar (55–75 ms exact)
+   * beam 10 saved 0–10 % and beam 7 10–40 % across runs, while beam 5
+   * pruned every parse of every sentence (which then fell back to exact
+   * search, slower than no beam). On the demo split beam 5 changed no F1;
+   * beam 3 lost 2.5 F1.
    */
   beam: number;
   /**
