@@ -19,15 +19,17 @@ export interface PcfgSettings {
    * generated. Infinity keeps them all (no markovisation: the binarised
    * grammar is then the plain treebank PCFG). Default 1: on the demo corpus
    * every h ≥ 1 gives the same F1 (97.37 at v = 2; h = 0 loses 0.2), and on
-   * the large grammar h = 1 parses 2.7× faster than h = 2 (58 vs 156 ms).
+   * the large grammar h = 1 parses ~3× faster than h = 2 (50–58 vs
+   * 156–164 ms per 20-word sentence at 50-best, two runs).
    */
   horizontal: number;
   /**
    * Vertical order v: a phrasal symbol is annotated with its v - 1 nearest
    * ancestors' labels (v = 2 is parent annotation, Johnson 1998). Default 2:
    * +1.8 F1 over v = 1 on the demo corpus. v = 3 gains another 0.6 there
-   * (97.98) but parses the large grammar 4× slower (229 vs 58 ms per
-   * 20-word sentence at 50-best), which the 2-minute budget cannot take.
+   * (97.98) but parses the large grammar ~4× slower (200–229 vs 50–58 ms
+   * per 20-word sentence at 50-best, two runs), which the 2-minute budget
+   * cannot take.
    */
   vertical: number;
   /**
