@@ -546,10 +546,14 @@ for (const [name, size] of SPLITS) {
   tally = {};
   const trees = [];
   while (trees.length < size) {
+    const kept = structuredClone(tally); // a redrawn sentence must not count towards the balance
     const t = capitalise(sentence());
     const w = wordsOf(t);
     const key = w.join(' ');
-    if (w.length < MIN_WORDS || w.length > MAX_WORDS || seen.has(key)) continue;
+    if (w.length < MIN_WORDS || w.length > MAX_WORDS || seen.has(key)) {
+      tally = kept;
+      continue;
+    }
     seen.add(key);
     trees.push(layout(t));
   }
