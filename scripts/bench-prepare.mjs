@@ -1,29 +1,72 @@
 #!/usr/bin/env node
-// Benchmark (not a test) for `sheaf prepare`. Generates its own 50-best data
-// (~25-word sentences) and prints, from one run:
-//   - candidates/s of prepare with 1 worker, as a ratio to reading + JSON.parse
-//     of the same dump (the floor); target >= 0.5
-//   - speed-up of 2 workers over 1; target >= 1.7 on 2 cores
-//   - peak RSS at SMALL and LARGE sentences; target <= 400 MB, ratio <= 1.1
-//   - shard bytes / input JSONL bytes; target <= 0.25
-//   - extrapolated time for 1M sentences x 50 candidates; target <= 10 min
+// Benchmark (not a test) for `sheaf prepare`. Generates its own input and
+// prints figures as ratios measured in one run; asserts nothing.
 //
-//   node scripts/bench-prepare.mjs [speedSentences=4000] [small=5000] [large=50000]
+// Two kinds of 50-best lists:
+//   generated  random 20–30-word trees, each candidate the gold with 15 % of
+//              its phrase labels changed at random, independently (the lists
+//              share little: the hard case for difference vectors);
+//   parsed     k-best lists of the embedded PCFG (trained on the demo
+//              training treebank) for the demo sentences: lists as a real base
+//              parser makes them (candidates share most of their structure).
+// Figures:
+//   - one thread, in process, per candidate: the per-sentence chain against
+//     the read-only floor (parse + normalise every candidate tree; target
+//     >= 0.33) and against the direct path (whole vectors, the test oracle);
+//   - prepare end to end (a fresh process): 1 and 2 workers, and with
+//     --baseline DIR a built checkout of an earlier sheaf run on the same data
+//     with 1 worker (the "today's" of an issue);
+//   - shard directory bytes / input JSON Lines bytes (target <= 1.0), and
+//     format-1 bytes (8 bytes per stored bucket, whole vectors) / format-2;
+//   - peak RSS with 2 workers at two corpus sizes (gold and lists alike,
+//     10 candidates each; target <= 400 MB, ratio <= 1.15);
+//   - 1M sentences x 50 extrapolated from two measured sizes (target <= 15 min).
+//
+//   node scripts/bench-prepare.mjs [--speed 2000] [--small 5000] [--large 200000] [--baseline DIR] [--skip-memory]
 import { spawnSync } from 'node:child_process';
-import { createReadStream, createWriteStream, mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { createWriteStream, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join } from 'node:path';
-import { createInterface } from 'node:readline';
+import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { createVocabulary } from '../dist/core/interner.js';
+import { normaliseTree } from '../dist/core/normalise.js';
+import { SentenceScorer } from '../dist/core/parseval.js';
+import { parseTree } from '../dist/core/read-brackets.js';
+import { yieldOf } from '../dist/core/tree.js';
+import { writeTree } from '../dist/core/write-brackets.js';
+import { directVectors } from '../dist/features/direct-vectors.js';
+import { MsgpackWriter } from '../dist/formats/msgpack.js';
+import { loadPipeline } from '../dist/io/load-pipeline.js';
+import { readTreebank } from '../dist/io/read-treebank.js';
+import { KBestParser, PcfgTrainer, DEFAULT_PCFG_SETTINGS } from '../dist/parser/index.js';
+import { createSentenceChain } from '../dist/prepare/sentence-chain.js';
+import { parseCandidates } from '../dist/stages/parse-candidates.js';
+import { scoreCandidates } from '../dist/stages/score-candidates.js';
 import { perturb, randomTree, rng } from './lib/gen-trees.mjs';
 
-const [SPEED, SMALL, LARGE] = [Number(process.argv[2] ?? 4000), Number(process.argv[3] ?? 5000), Number(process.argv[4] ?? 50000)];
+const arg = (name, dflt) => {
+  const k = process.argv.indexOf(`--${name}`);
+  return k < 0 ? dflt : process.argv[k + 1];
+};
+const SPEED = Number(arg('speed', 2000));
+const SMALL = Number(arg('small', 5000));
+const LARGE = Number(arg('large', 200000));
+const BASELINE = arg('baseline', null);
+const SKIP_MEMORY = process.argv.includes('--skip-memory');
 const K = 50;
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-bench-prepare-'));
-const pipeline = join(root, 'pipelines/default.json');
+const pipelineFile = join(root, 'pipelines/default.json');
+const n0 = (x) => Math.round(x).toLocaleString('en-US');
 
-async function generate(name, sentences, seed) {
+async function writeLines(file, lines) {
+  const s = createWriteStream(file);
+  for (const l of lines) if (!s.write(l + '\n')) await new Promise((r) => s.once('drain', r));
+  await new Promise((r) => s.end(r));
+}
+
+/** Generated lists: gold trees and candidates with random relabels. */
+async function generated(name, sentences, k, seed) {
   const rand = rng(seed);
   const gold = join(dir, `${name}.trees`);
   const dump = join(dir, `${name}.jsonl`);
@@ -33,67 +76,145 @@ async function generate(name, sentences, seed) {
     const tree = randomTree(rand, 20 + Math.floor(rand() * 11));
     g.write(tree + '\n');
     const cands = [];
-    for (let k = 0; k < K; k++) cands.push({ tree: k === 3 ? tree : perturb(rand, tree, 0.15), score: Math.round((-40 - k * 0.4 - rand()) * 1000) / 1000 });
-    if (!d.write(JSON.stringify({ id: String(s + 1), fold: null, source: { parser: 'bench', fingerprint: 'none' }, candidates: cands }) + '\n')) {
-      await new Promise((r) => d.once('drain', r));
-    }
+    for (let c = 0; c < k; c++) cands.push({ tree: c === 3 ? tree : perturb(rand, tree, 0.15), score: Math.round((-40 - c * 0.4 - rand()) * 1000) / 1000 });
+    if (!d.write(JSON.stringify({ id: String(s + 1), fold: null, source: { parser: 'bench', fingerprint: 'none' }, candidates: cands }) + '\n')) await new Promise((r) => d.once('drain', r));
   }
   await Promise.all([new Promise((r) => g.end(r)), new Promise((r) => d.end(r))]);
   return { gold, dump, bytes: statSync(dump).size };
 }
 
-/** Runs prepare in a fresh process; returns seconds and peak RSS (MB). */
-function prepare(input, workers, name) {
+/** Parsed lists: the embedded PCFG's 50-best for the demo training sentences. */
+async function parsed(name) {
+  const vocab = createVocabulary();
+  const trees = [];
+  for await (const r of readTreebank(join(root, 'demo-corpus/huts-train.trees'), { vocab })) trees.push(normaliseTree(r.tree));
+  const trainer = new PcfgTrainer(DEFAULT_PCFG_SETTINGS);
+  for (const t of trees) trainer.add(t);
+  const parser = new KBestParser(trainer.finish());
+  const gold = join(dir, `${name}.trees`);
+  const dump = join(dir, `${name}.jsonl`);
+  await writeLines(gold, trees.map((t) => writeTree(t)));
+  await writeLines(dump, trees.map((t, s) => JSON.stringify({ id: String(s + 1), fold: null, source: { parser: 'pcfg', fingerprint: 'bench' }, candidates: parser.parse(yieldOf(t), K) })));
+  return { gold, dump, bytes: statSync(dump).size };
+}
+
+function jobsOf(input, limit) {
+  const golds = readFileSync(input.gold, 'utf8').split('\n');
+  return readFileSync(input.dump, 'utf8').trim().split('\n').slice(0, limit).map((l, pos) => {
+    const r = JSON.parse(l);
+    return { pos, id: r.id, fold: null, gold: golds[Number(r.id) - 1], candidates: r.candidates };
+  });
+}
+
+/** Best of `reps` timings of fn over the jobs; returns candidates/s. */
+function rate(jobs, fn, reps = 3) {
+  const n = jobs.reduce((a, j) => a + j.candidates.length, 0);
+  let best = Infinity;
+  for (let r = 0; r < reps; r++) {
+    const t0 = process.hrtime.bigint();
+    for (const j of jobs) fn(j);
+    best = Math.min(best, Number(process.hrtime.bigint() - t0) / 1e9);
+  }
+  return n / best;
+}
+
+/** The format-1 record of a sentence: 8 bytes per stored bucket of every whole vector. */
+function format1Bytes(w, job, vectors, counts) {
+  w.reset();
+  w.mapHeader(5);
+  w.str('id'); w.str(job.id); w.str('fold'); w.nil(); w.str('gold'); w.int(counts.gold); w.str('flag'); w.nil();
+  w.str('cands'); w.arrayHeader(vectors.length);
+  vectors.forEach((v, k) => {
+    w.mapHeader(6);
+    w.str('score'); w.float64(job.candidates[k].score); w.str('rank'); w.int(k);
+    w.str('matched'); w.int(counts.counts[k].matched); w.str('test'); w.int(counts.counts[k].test);
+    w.str('idx'); w.bin(Uint32Array.from(v.idx)); w.str('val'); w.bin(Float32Array.from(v.val));
+  });
+  return w.length;
+}
+
+function inProcess(label, input) {
+  const pipeline = loadPipeline(pipelineFile);
+  const jobs = jobsOf(input, 600);
+  const vocab = createVocabulary();
+  const floor = rate(jobs, (j) => { for (const c of j.candidates) normaliseTree(parseTree(c.tree, vocab)); });
+  const chain = createSentenceChain(pipeline);
+  const diff = rate(jobs, (j) => chain.run(j));
+  const parse = parseCandidates(pipeline.parse);
+  const score = scoreCandidates(pipeline.scoring);
+  const w = new MsgpackWriter();
+  let f1 = 0;
+  const opts = { templates: pipeline.templates, bits: pipeline.hashing.bits, seed: 0 };
+  const direct = rate(jobs.slice(0, 200), (j) => {
+    const v = createVocabulary();
+    const trees = parse(j.candidates, v);
+    const counts = score(parseTree(j.gold, v), trees);
+    f1 += format1Bytes(w, j, directVectors(opts, trees.map((tree, rank) => ({ tree, score: j.candidates[rank].score, rank }))), counts);
+  }, 1);
+  const work = chain.extractor.work;
+  console.log(`[${label}] one thread, in process (${jobs.length} lists):`);
+  console.log(`  read-only floor: parse + normalise      ${n0(floor)} candidates/s`);
+  console.log(`  direct path, format 1 (the oracle)      ${n0(direct)} candidates/s`);
+  console.log(`  prepare chain, format 2                 ${n0(diff)} candidates/s   ${(diff / floor).toFixed(2)} of the floor (target >= 0.33), ${(diff / direct).toFixed(2)}x the direct path`);
+  console.log(`  per candidate: ${(work.computed / work.candidates).toFixed(0)} features computed, ${(work.stored / work.candidates).toFixed(0)} entries stored`);
+  return { f1PerCandidate: f1 / (200 * K) };
+}
+
+/** Runs prepare in a fresh process; seconds, peak RSS (MB), shard directory bytes. */
+function prepare(input, workers, name, tool = root, pipeline = pipelineFile) {
   const out = join(dir, `out-${name}-${workers}`);
-  const code = `
-    const { runPrepare } = await import(${JSON.stringify(join(root, 'dist/commands/prepare.js'))});
+  const script = join(dir, `run-${name}-${workers}.mjs`);
+  // A script file, not --eval: worker threads inherit execArgv.
+  writeFileSync(script, `
+    const { runPrepare } = await import(${JSON.stringify(join(tool, 'dist/prepare/run-prepare.js'))}).catch(() => import(${JSON.stringify(join(tool, 'dist/commands/prepare.js'))}));
     const t0 = process.hrtime.bigint();
     const s = await runPrepare({ gold: ${JSON.stringify(input.gold)}, nbest: [${JSON.stringify(input.dump)}], pipeline: ${JSON.stringify(pipeline)}, out: ${JSON.stringify(out)}, workers: ${workers}, quiet: true });
     const secs = Number(process.hrtime.bigint() - t0) / 1e9;
-    console.log(JSON.stringify({ secs, rss: process.resourceUsage().maxRSS / 1024, candidates: s.candidates, written: s.written }));`;
-  // A script file, not --eval: worker threads inherit execArgv.
-  const script = join(dir, `run-${name}-${workers}.mjs`);
-  writeFileSync(script, code);
+    console.log(JSON.stringify({ secs, rss: process.resourceUsage().maxRSS / 1024, candidates: s.candidates }));`);
   const r = spawnSync(process.execPath, [script], { encoding: 'utf8', maxBuffer: 1 << 26 });
   if (r.status !== 0) throw new Error(`prepare failed: ${r.stderr}`);
   const res = JSON.parse(r.stdout.trim().split('\n').pop());
-  res.shardBytes = readdirSync(out).filter((f) => /^shard-\d+\.msgpack$/.test(f)).reduce((a, f) => a + statSync(join(out, f)).size, 0);
+  res.bytes = readdirSync(out).reduce((a, f) => a + statSync(join(out, f)).size, 0);
   rmSync(out, { recursive: true });
   return res;
 }
 
-async function floor(input) {
-  const t0 = process.hrtime.bigint();
-  let n = 0;
-  const rl = createInterface({ input: createReadStream(input.dump), crlfDelay: Infinity });
-  for await (const line of rl) n += JSON.parse(line).candidates.length;
-  return { secs: Number(process.hrtime.bigint() - t0) / 1e9, candidates: n };
+function endToEnd(label, input, f1PerCandidate) {
+  const one = prepare(input, 1, label);
+  const two = prepare(input, 2, label);
+  console.log(`[${label}] prepare end to end, ${n0(one.candidates)} candidates:`);
+  console.log(`  1 worker                                ${n0(one.candidates / one.secs)} candidates/s`);
+  console.log(`  2 workers                               ${n0(two.candidates / two.secs)} candidates/s   ${(one.secs / two.secs).toFixed(2)}x 1 worker (target >= 1.7)`);
+  if (BASELINE) {
+    const base = prepare(input, 1, `${label}-baseline`, resolve(BASELINE), join(resolve(BASELINE), 'pipelines/default.json'));
+    console.log(`  baseline ${BASELINE}, 1 worker     ${n0(base.candidates / base.secs)} candidates/s   this one: ${(base.secs / one.secs).toFixed(2)}x (target >= 5)`);
+  }
+  console.log(`  shard directory / input JSON Lines      ${(two.bytes / input.bytes).toFixed(2)} (target <= 1.0); format 1 / format 2: ${((f1PerCandidate * two.candidates) / two.bytes).toFixed(1)} (target >= 5)`);
+  return two;
 }
 
-const mb = (x) => `${x.toFixed(0)} MB`;
-console.log(`generating ${SPEED}, ${SMALL} and ${LARGE} sentences × ${K} candidates (20–30 words) in ${dir}`);
-const speedData = await generate('speed', SPEED, 1);
-const f = await floor(speedData);
-const one = prepare(speedData, 1, 'speed');
-const two = prepare(speedData, 2, 'speed');
-const floorRate = f.candidates / f.secs;
-const oneRate = one.candidates / one.secs;
-const twoRate = two.candidates / two.secs;
-console.log(`floor: read + JSON.parse            ${Math.round(floorRate).toLocaleString('en-US')} candidates/s`);
-console.log(`prepare, 1 worker                   ${Math.round(oneRate).toLocaleString('en-US')} candidates/s   ratio to floor ${(oneRate / floorRate).toFixed(3)} (target >= 0.5)`);
-console.log(`prepare, 2 workers                  ${Math.round(twoRate).toLocaleString('en-US')} candidates/s   speed-up ${(twoRate / oneRate).toFixed(2)} (target >= 1.7)`);
-console.log(`shard bytes / input JSONL bytes     ${(two.shardBytes / speedData.bytes).toFixed(2)} (target <= 0.25)`);
-rmSync(speedData.dump);
+console.log(`sheaf prepare benchmark; data in ${dir}`);
+const gen = await generated('generated', SPEED, K, 1);
+const genF1 = inProcess('generated', gen).f1PerCandidate;
+const genRun = endToEnd('generated', gen, genF1);
+const real = await parsed('parsed');
+const realF1 = inProcess('parsed', real).f1PerCandidate;
+endToEnd('parsed', real, realF1);
 
-const small = await generate('small', SMALL, 2);
-const s = prepare(small, 2, 'small');
-rmSync(small.dump);
-const large = await generate('large', LARGE, 3);
-const l = prepare(large, 2, 'large');
-rmSync(large.dump);
-console.log(`peak RSS at ${SMALL} sentences       ${mb(s.rss)}`);
-console.log(`peak RSS at ${LARGE} sentences      ${mb(l.rss)}   ratio ${(l.rss / s.rss).toFixed(2)} (target <= 400 MB, ratio <= 1.1)`);
-const perCandidate = l.secs / l.candidates;
-console.log(`2 workers on ${LARGE} sentences:    ${Math.round(l.candidates / l.secs).toLocaleString('en-US')} candidates/s`);
-console.log(`extrapolated 1M sentences × 50:     ${((perCandidate * 50e6) / 60).toFixed(0)} min (target <= 10 min)`);
+// Linear cost: 2 workers at two sizes of generated 50-best data.
+const half = await generated('half', Math.max(200, Math.floor(SPEED / 4)), K, 4);
+const halfRun = prepare(half, 2, 'half');
+const perCandidate = (genRun.secs - halfRun.secs) / (genRun.candidates - halfRun.candidates);
+console.log(`linear cost (2 workers, generated): ${n0(halfRun.candidates)} candidates in ${halfRun.secs.toFixed(1)} s, ${n0(genRun.candidates)} in ${genRun.secs.toFixed(1)} s: ${(perCandidate * 1e6).toFixed(1)} µs per added candidate`);
+console.log(`1M sentences x 50 extrapolated: ${((perCandidate * 50e6 + halfRun.secs) / 60).toFixed(0)} min (target <= 15 min)`);
+
+if (!SKIP_MEMORY) {
+  const small = await generated('small', SMALL, 10, 2);
+  const s = prepare(small, 2, 'small');
+  rmSync(small.dump);
+  const large = await generated('large', LARGE, 10, 3);
+  const l = prepare(large, 2, 'large');
+  rmSync(large.dump);
+  console.log(`peak RSS, 2 workers, 10 candidates: ${n0(SMALL)} sentences ${s.rss.toFixed(0)} MB, ${n0(LARGE)} sentences ${l.rss.toFixed(0)} MB: ratio ${(l.rss / s.rss).toFixed(2)} (target <= 400 MB, ratio <= 1.15)`);
+}
 rmSync(dir, { recursive: true });

@@ -30,6 +30,17 @@ export interface TreeRecord {
   tree: Tree;
 }
 
+/** A gold tree's text, checked but not built (io/read-treebank.ts, readTreeTexts). */
+export interface TreeTextRecord {
+  id: string;
+  ordinal: number;
+  file: string;
+  line: number;
+  column: number;
+  /** The tree exactly as the file has it (possibly over several lines). */
+  text: string;
+}
+
 /** One candidate as an n-best dump gives it. */
 export interface CandidateText {
   tree: string;

@@ -66,6 +66,20 @@ export interface ParseOptions {
  */
 export function parseTree(text: string, vocab: Vocabulary, options: ParseOptions = {}): Tree {
   const b = options.builder && options.builder.vocab === vocab ? options.builder : scratchBuilder(vocab);
+  return finish(b, scan(text, vocab, b));
+}
+
+/**
+ * Checks that `text` holds exactly one well-formed tree, as parseTree would
+ * read it, without building the tree (no allocation per tree: for readers
+ * that only need to know the text is good). Throws the same DataErrors.
+ */
+export function checkTree(text: string, vocab: Vocabulary, builder?: TreeBuilder): void {
+  scan(text, vocab, builder && builder.vocab === vocab ? builder : scratchBuilder(vocab));
+}
+
+/** Reads the tree into the builder; returns whether it had an unlabeled outer bracket. */
+function scan(text: string, vocab: Vocabulary, b: TreeBuilder): boolean {
   b.reset();
   const labels = vocab.labels;
   const words = vocab.words;
@@ -121,7 +135,7 @@ export function parseTree(text: string, vocab: Vocabulary, options: ParseOptions
           fail(text.charCodeAt(i) === CLOSE ? 'unexpected-close' : 'stray-text',
             `expected the end of the tree after the root's \`)\`, got ${describe(text, i)}`, i);
         }
-        return finish(b, wrapped);
+        return wrapped;
       }
     } else if (isSpace(c)) {
       i++;

@@ -1,6 +1,6 @@
 /**
  * The gold side of the join. The gold treebank is streamed once; each tree is
- * written (normalised, as one bracketed line) to a spill file on disk and
+ * checked (not built) and its text written to a spill file on disk and
  * indexed by id: in memory stay the id table (core/id-table.ts) and, per gold
  * sentence, a spill offset and length, a fold, a seen flag and its line —
  * about 45–55 bytes per gold sentence. Dumps may then come in any order; each
@@ -10,9 +10,8 @@ import { closeSync, openSync, readSync, writeSync } from 'node:fs';
 import { DataError } from '../core/errors.js';
 import { IdTable } from '../core/id-table.js';
 import { createVocabulary } from '../core/interner.js';
-import { writeTree } from '../core/write-brackets.js';
 import type { RejectRecord } from '../records.js';
-import { readTreebank } from './read-treebank.js';
+import { readTreeTexts } from './read-treebank.js';
 
 export class GoldIndex {
   private readonly ids = new IdTable();
@@ -36,13 +35,13 @@ export class GoldIndex {
     try {
       const vocab = createVocabulary();
       const rejectOf = (e: DataError): RejectRecord => ({ file: e.file ?? file, line: e.line ?? null, column: e.column ?? null, id: e.id ?? null, code: e.code, reason: e.reason });
-      for await (const rec of readTreebank(file, { vocab, onBad: (e) => onReject(rejectOf(e)), tap })) {
+      for await (const rec of readTreeTexts(file, { vocab, onBad: (e) => onReject(rejectOf(e)), tap })) {
         const k = index.ids.add(rec.id);
         if (k < 0) {
           onReject({ file, line: rec.line, column: rec.column, id: rec.id, code: 'duplicate-id', reason: `gold id \`${rec.id}\` appears again (first at line ${index.lines[-1 - k]}); the later tree is refused` });
           continue;
         }
-        index.add(k, writeTree(rec.tree), rec.line);
+        index.add(k, rec.text, rec.line);
       }
       index.flush();
     } catch (e) {

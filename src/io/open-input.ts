@@ -30,16 +30,33 @@ async function* rawBytes(path: string): AsyncGenerator<Buffer> {
  * `tap` sees the raw (compressed) bytes, e.g. to digest the input as read.
  */
 export async function* readBytes(path: string, tap?: (chunk: Buffer) => void): AsyncGenerator<Buffer> {
-  const source = tapped(rawBytes(path), tap);
-  const first = await source.next();
-  if (first.done) return;
-  const head = first.value;
+  yield* inflateBytes(rawBytes(path), path, tap);
+}
+
+/**
+ * The same over bytes from anywhere (a file's raw chunks, or a test's):
+ * gunzipped when they start with the gzip magic bytes. `path` names them in errors.
+ */
+export async function* inflateBytes(raw: AsyncIterable<Buffer>, path: string, tap?: (chunk: Buffer) => void): AsyncGenerator<Buffer> {
+  const source = tapped(raw, tap);
+  // The magic bytes may arrive in separate chunks (a pipe can deliver one byte first).
+  let head: Buffer = Buffer.alloc(0);
+  while (head.length < 2) {
+    const next = await source.next();
+    if (next.done) break;
+    head = head.length === 0 ? next.value : Buffer.concat([head, next.value]);
+  }
+  if (head.length === 0) return;
   if (head.length >= 2 && head[0] === 0x1f && head[1] === 0x8b) {
     async function* again(): AsyncGenerator<Buffer> {
       yield head;
       yield* source;
     }
-    const gunzip = Readable.from(again()).pipe(createGunzip({ chunkSize: CHUNK }));
+    // pipe() does not pass the source's errors on; forward them so they surface here.
+    const input = Readable.from(again());
+    const gunzip = createGunzip({ chunkSize: CHUNK });
+    input.on('error', (e) => gunzip.destroy(e));
+    input.pipe(gunzip);
     try {
       for await (const chunk of gunzip) yield chunk as Buffer;
     } catch (error) {
@@ -52,7 +69,7 @@ export async function* readBytes(path: string, tap?: (chunk: Buffer) => void): A
   yield* source;
 }
 
-async function* tapped(chunks: AsyncGenerator<Buffer>, tap?: (chunk: Buffer) => void): AsyncGenerator<Buffer> {
+async function* tapped(chunks: AsyncIterable<Buffer>, tap?: (chunk: Buffer) => void): AsyncGenerator<Buffer> {
   for await (const c of chunks) {
     tap?.(c);
     yield c;

@@ -9,7 +9,7 @@ import { Readable } from 'node:stream';
 import { streamArray } from 'stream-json/streamers/stream-array.js';
 import { DataError } from '../core/errors.js';
 import { checkNbestRecord, type NbestItem } from '../stages/read-nbest.js';
-import { readBytes } from './open-input.js';
+import { inflateBytes, readBytes } from './open-input.js';
 import { jsonLines } from './read-jsonl.js';
 
 export type { NbestItem };
@@ -19,7 +19,7 @@ export interface ReadNbestOptions {
   maxCandidates?: number;
   /** Sees the raw bytes of the file (for its digest). */
   tap?: (chunk: Buffer) => void;
-  /** The bytes to read instead of opening `file` (tests feed random chunks here). */
+  /** Raw bytes to read instead of opening `file` (gzip still recognised; tests feed random chunks here). */
   source?: AsyncIterable<Buffer>;
 }
 
@@ -30,7 +30,7 @@ function reject(file: string, line: number | null, code: 'bad-json' | 'invalid-u
 /** Yields every record of one dump file, in file order. */
 export async function* readNbest(file: string, options: ReadNbestOptions = {}): AsyncGenerator<NbestItem> {
   const max = options.maxCandidates ?? 0;
-  const bytes = options.source ? (async function* () { for await (const c of options.source!) yield c; })() : readBytes(file, options.tap);
+  const bytes = options.source ? inflateBytes(options.source, file, options.tap) : readBytes(file, options.tap);
   // Peek at the first non-space byte to choose the format.
   let head: Buffer | null = null;
   const firstChunks: Buffer[] = [];

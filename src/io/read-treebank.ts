@@ -6,13 +6,13 @@
  */
 import { DataError } from '../core/errors.js';
 import type { Vocabulary } from '../core/interner.js';
-import { parseTree } from '../core/read-brackets.js';
+import { checkTree, parseTree } from '../core/read-brackets.js';
 import { BracketSplitter, isSplitError, type SplitItem } from '../core/split-brackets.js';
 import { TreeBuilder } from '../core/tree.js';
-import type { TreeRecord } from '../records.js';
+import type { TreeRecord, TreeTextRecord } from '../records.js';
 
-export type { TreeRecord };
-import { decodeText, readBytes, type BadLine } from './open-input.js';
+export type { TreeRecord, TreeTextRecord };
+import { decodeText, inflateBytes, readBytes, type BadLine } from './open-input.js';
 import { jsonLines } from './read-jsonl.js';
 
 export type TreebankFormat = 'auto' | 'brackets' | 'jsonl';
@@ -26,7 +26,7 @@ export interface ReadTreebankOptions {
   columnOneStartsTree?: boolean;
   /** Sees the raw bytes of the file (for its digest). */
   tap?: (chunk: Buffer) => void;
-  /** The bytes to read instead of opening `file` (tests feed random chunks here). */
+  /** Raw bytes to read instead of opening `file` (gzip still recognised; tests feed random chunks here). */
   source?: AsyncIterable<Buffer>;
 }
 
@@ -59,12 +59,40 @@ async function peekFormat(chunks: AsyncIterable<Buffer>): Promise<{ format: 'bra
 }
 
 export async function* readTreebank(file: string, options: ReadTreebankOptions): AsyncGenerator<TreeRecord> {
+  for await (const r of readTrees(file, options, (text, builder) => parseTree(text, options.vocab, { builder }))) {
+    yield { id: r.id, ordinal: r.ordinal, file: r.file, line: r.line, column: r.column, tree: r.value };
+  }
+}
+
+/**
+ * The same trees as their text, checked but not built (no allocation per
+ * tree): for readers that only pass the text on, like the gold index.
+ */
+export async function* readTreeTexts(file: string, options: ReadTreebankOptions): AsyncGenerator<TreeTextRecord> {
+  for await (const r of readTrees(file, options, (text, builder) => {
+    checkTree(text, options.vocab, builder);
+    return text;
+  })) {
+    yield { id: r.id, ordinal: r.ordinal, file: r.file, line: r.line, column: r.column, text: r.value };
+  }
+}
+
+interface Located<T> {
+  id: string;
+  ordinal: number;
+  file: string;
+  line: number;
+  column: number;
+  value: T;
+}
+
+async function* readTrees<T>(file: string, options: ReadTreebankOptions, make: (text: string, builder: TreeBuilder) => T): AsyncGenerator<Located<T>> {
   const bad = (e: DataError): void => {
     const located = e.file === undefined ? e.relocate({ file }) : e;
     if (!options.onBad) throw located;
     options.onBad(located);
   };
-  const peeked = await peekFormat(options.source ?? readBytes(file, options.tap));
+  const peeked = await peekFormat(options.source ? inflateBytes(options.source, file, options.tap) : readBytes(file, options.tap));
   const format = options.format === undefined || options.format === 'auto' ? peeked.format : options.format;
   if (format === null) return;
   const builder = new TreeBuilder(options.vocab);
@@ -77,7 +105,7 @@ export async function* readTreebank(file: string, options: ReadTreebankOptions):
         bad(new DataError('invalid-utf8', l.bad.reason, { file, line: l.line, column: l.bad.column }));
         continue;
       }
-      const r = fromJsonLine(l.text!, l.line, ordinal, file, options, builder, bad);
+      const r = fromJsonLine(l.text!, l.line, ordinal, file, builder, bad, make);
       if (r) yield r;
     }
     return;
@@ -99,7 +127,7 @@ export async function* readTreebank(file: string, options: ReadTreebankOptions):
     return first;
   };
 
-  const fromBrackets = function* (list: SplitItem[]): Generator<TreeRecord> {
+  const fromBrackets = function* (list: SplitItem[]): Generator<Located<T>> {
     for (const item of list) {
       if (isSplitError(item)) {
         if (item.tree) ordinal++;
@@ -117,8 +145,8 @@ export async function* readTreebank(file: string, options: ReadTreebankOptions):
         continue;
       }
       try {
-        const tree = parseTree(item.text, options.vocab, { builder });
-        yield { id, ordinal, file, line: item.line, column: item.column, tree };
+        const value = make(item.text, builder);
+        yield { id, ordinal, file, line: item.line, column: item.column, value };
       } catch (e) {
         if (!(e instanceof DataError)) throw e;
         const line = item.line + (e.line ?? 1) - 1;
@@ -146,7 +174,7 @@ export async function* readTreebank(file: string, options: ReadTreebankOptions):
   for (const b of badLines.splice(0)) bad(new DataError('invalid-utf8', b.reason, { file, line: b.line, column: b.column }));
 }
 
-function fromJsonLine(text: string, line: number, ordinal: number, file: string, options: ReadTreebankOptions, builder: TreeBuilder, bad: (e: DataError) => void): TreeRecord | null {
+function fromJsonLine<T>(text: string, line: number, ordinal: number, file: string, builder: TreeBuilder, bad: (e: DataError) => void, make: (text: string, builder: TreeBuilder) => T): Located<T> | null {
   let value: unknown;
   try {
     value = JSON.parse(text);
@@ -171,7 +199,7 @@ function fromJsonLine(text: string, line: number, ordinal: number, file: string,
     return null;
   }
   try {
-    return { id, ordinal, file, line, column: 1, tree: parseTree(tree, options.vocab, { builder }) };
+    return { id, ordinal, file, line, column: 1, value: make(tree, builder) };
   } catch (e) {
     if (!(e instanceof DataError)) throw e;
     bad(new DataError(e.code, `in the \`tree\` string at its line ${e.line}, column ${e.column}: ${e.reason}`, { file, line, id }));
