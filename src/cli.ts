@@ -8,20 +8,20 @@ import yargs, { type Argv } from 'yargs';
 import { DataError, UsageError } from './core/errors.js';
 import { demoCommand } from './commands/demo.js';
 import { inspectCommand } from './commands/inspect.js';
+import { jackknifeCommand } from './commands/jackknife.js';
+import { splitCommand } from './commands/split.js';
 import { prepareCommand } from './commands/prepare.js';
 import type { CommandModule } from './commands/command.js';
 
 /** Commands of the design that later work will build; they refuse to run. */
 const PLANNED: [string, string][] = [
-  ['split', 'cut a gold treebank into k folds for jackknifing'],
-  ['jackknife', 'parse every fold with a base model trained on the other folds'],
   ['train', 'train a re-ranker on a shard directory'],
   ['eval', 'base, oracle and re-ranked F1 of a model on a shard directory'],
   ['rerank', 'pick the best tree of each n-best list with a model'],
   ['export', 'write shards as sparse ranking text for other trainers'],
 ];
 
-const BUILT: CommandModule[] = [prepareCommand, inspectCommand, demoCommand];
+const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, inspectCommand, demoCommand];
 
 /**
  * yargs takes a lone `-` as the end of an option's values; DESIGN.md wants

@@ -20,10 +20,11 @@ describe('sheaf CLI', () => {
   });
 
   it('runs the demo on the shipped corpus and prints base and oracle F1 as JSON', () => {
-    const r = sheaf('demo', '--json', '--workers', '1');
+    const r = sheaf('demo', '--json', '--workers', '2');
     expect(r.status).toBe(0);
     const s = JSON.parse(r.stdout);
-    expect(s.prepare).toMatchObject({ read: 1200, written: 1200, rejected: 0 });
+    expect(s.prepare.train).toMatchObject({ read: 4000, written: 4000, rejected: 0, candidates: 200000 });
+    expect(s.prepare.test).toMatchObject({ read: 400, written: 400, rejected: 0 });
     for (const k of ['base', 'oracle']) expect(Object.keys(s[k]).sort()).toEqual(['f1', 'precision', 'recall', 'sentences']);
     // The oracle can only be at least as good as the base 1-best.
     expect(s.oracle.f1).toBeGreaterThanOrEqual(s.base.f1);

@@ -17,7 +17,7 @@ import { normaliseTree } from '../src/core/normalise.js';
 import { parseTree } from '../src/core/read-brackets.js';
 import { addVectors, splitParts, type SparseVector } from '../src/core/sparse-vector.js';
 import { writeTree } from '../src/core/write-brackets.js';
-import { seededRandom, syntheticCandidates } from '../src/demo/synthetic-nbest.js';
+import { seededRandom, syntheticCandidates } from './helpers/synthetic-nbest.js';
 import { directVectors } from '../src/features/direct-vectors.js';
 import { VectorExtractor, type CandidateInput } from '../src/features/extract-vectors.js';
 import { checkOptions } from '../src/features/options.js';
@@ -127,7 +127,7 @@ describe('difference vectors (reference + difference = direct path)', () => {
     let entries = 0;
     const templates = ALL();
     const context = WITH_CONTEXT();
-    for await (const rec of readTreebank(`${root}/demo-corpus/huts.trees`, { vocab })) {
+    for await (const rec of readTreebank(`${root}/demo-corpus/huts-train.trees`, { vocab })) {
       if (sentences++ >= 60) break;
       const gold = normaliseTree(rec.tree)!;
       const list = syntheticCandidates(gold, 20, rand, vocab);

@@ -20,7 +20,7 @@ import { directVectors } from '../src/features/direct-vectors.js';
 import { decodeCounts } from '../src/formats/counts-file.js';
 import { MsgpackReader } from '../src/formats/msgpack.js';
 import { toShardSentence } from '../src/formats/shard-record.js';
-import { makeDemoData, type DemoData } from '../src/demo/make-demo-data.js';
+import { makeDemoData, type DemoData } from './helpers/make-demo-data.js';
 import { absoluteVectors, sentenceView } from '../src/inspect/inspect-shards.js';
 import { loadPipeline } from '../src/io/load-pipeline.js';
 import { readManifest, readShard, readShardDir } from '../src/io/read-shards.js';
@@ -40,7 +40,7 @@ const out = () => join(dir, `out${n++}`);
 
 beforeAll(async () => {
   // The first 90 demo trees, and a pipeline with small shards so runs span several.
-  const trees = readFileSync(join(root, 'demo-corpus/huts.trees'), 'utf8').split(/\n(?=\( \()/).slice(0, 90);
+  const trees = readFileSync(join(root, 'demo-corpus/huts-train.trees'), 'utf8').split(/\n(?=\( \()/).slice(0, 90);
   gold = join(dir, 'gold.trees');
   writeFileSync(gold, trees.join('\n') + '\n');
   data = await makeDemoData(gold, join(dir, 'in'), { folds: 3, nbest: 8 });

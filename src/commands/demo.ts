@@ -10,7 +10,7 @@ export const demoCommand: CommandModule = {
     y
       .option('out', { alias: 'o', type: 'string', description: 'keep everything in this folder (default: a temporary folder)' })
       .option('json', { type: 'boolean', default: false, description: 'print one JSON summary on stdout' })
-      .option('workers', { type: 'number', description: 'worker threads for prepare' })
+      .option('workers', { type: 'number', description: 'worker threads (default: all cores)' })
       .example('$0 demo', 'prepare the demo corpus and print base and oracle F1')
       .example('$0 demo -o demo-run --json', 'keep the outputs and print a JSON summary'),
   handler: async (args) => {

@@ -18,7 +18,7 @@ export const prepareCommand: CommandModule = {
       .option('strict', { type: 'boolean', default: false, description: 'stop at the first bad record instead of rejecting it' })
       .option('quiet', { type: 'boolean', default: false, description: 'no progress output' })
       .option('json', { type: 'boolean', default: false, description: 'print a JSON summary on stdout' })
-      .example('$0 prepare --gold huts.trees --nbest fold-*.jsonl.gz --pipeline default -o shards/', 'prepare training shards'),
+      .example('$0 prepare --gold huts-train.trees --nbest fold-*.jsonl.gz --pipeline default -o shards/', 'prepare training shards'),
   handler: async (args) => {
     const summary = await runPrepare({
       gold: args.gold as string,

@@ -1,13 +1,12 @@
 /**
- * Writes the demo's inputs into a folder: a fold plan (folds.json, k folds by
+ * Writes test inputs into a folder: a fold plan (folds.json, k folds by
  * position) and one synthetic n-best dump per fold, provenance-stamped, from
- * the shipped gold treebank. A stand-in for `sheaf split` + `sheaf jackknife`
- * until they exist.
+ * a gold treebank (fast, and with lists that sometimes miss the gold tree).
  */
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { createVocabulary } from '../core/interner.js';
-import { readTreebank } from '../io/read-treebank.js';
+import { createVocabulary } from '../../src/core/interner.js';
+import { readTreebank } from '../../src/io/read-treebank.js';
 import { seededRandom, syntheticCandidates } from './synthetic-nbest.js';
 
 export interface DemoData {

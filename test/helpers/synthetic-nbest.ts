@@ -1,13 +1,14 @@
 /**
- * Synthetic n-best lists for the demo and tests: each gold tree is varied by
- * seeded random edits (relabel a phrase, flatten one, group two adjacent
- * siblings) into distinct candidates with noisy scores that loosely prefer
- * fewer edits; about three lists in ten miss the gold tree. A stand-in for a base parser until `sheaf jackknife` exists; the
- * words never change, so every candidate aligns with its gold tree.
+ * Synthetic n-best lists for tests: each gold tree is varied by seeded random
+ * edits (relabel a phrase, flatten one, group two adjacent siblings) into
+ * distinct candidates with noisy scores that loosely prefer fewer edits;
+ * about three lists in ten miss the gold tree. The words never change, so
+ * every candidate aligns with its gold tree. (Test input only: the demo uses
+ * the embedded parser's real k-best lists.)
  */
-import type { Vocabulary } from '../core/interner.js';
-import { parseTree } from '../core/read-brackets.js';
-import type { Tree } from '../core/tree.js';
+import type { Vocabulary } from '../../src/core/interner.js';
+import { parseTree } from '../../src/core/read-brackets.js';
+import type { Tree } from '../../src/core/tree.js';
 
 type Node = { label: string; kids: (Node | string)[] };
 

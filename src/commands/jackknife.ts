@@ -1,0 +1,46 @@
+/** `sheaf jackknife`: argv → runJackknife (src/jackknife/run-jackknife.ts). */
+import { availableParallelism } from 'node:os';
+import type { Argv } from 'yargs';
+import { UsageError } from '../core/errors.js';
+import { runJackknife } from '../jackknife/run-jackknife.js';
+import type { CommandModule } from './command.js';
+
+export const jackknifeCommand: CommandModule = {
+  name: 'jackknife',
+  describe: 'parse every fold with a base model trained on the other folds',
+  builder: (y: Argv) =>
+    y
+      .option('plan', { type: 'string', demandOption: true, description: 'plan folder made by sheaf split' })
+      .option('out', { alias: 'o', type: 'string', demandOption: true, description: 'n-best folder (fold-<k>.jsonl.gz, jackknife.json)' })
+      .option('nbest', { type: 'number', default: 50, description: 'candidates per sentence' })
+      .option('workers', { type: 'number', default: availableParallelism(), description: 'worker threads (embedded parser) or parallel commands (external)' })
+      .option('parse', { type: 'string', array: true, description: 'also parse these treebanks with a model trained on all folds' })
+      .option('pcfg', { type: 'string', array: true, description: 'embedded parser setting, NAME=VALUE (horizontal, vertical, unknownThreshold, lexicalSmoothing, maxUnaryChain, beam, derivationFactor)' })
+      .option('train-cmd', { type: 'string', description: 'external parser: training command template with {train} {model}' })
+      .option('parse-cmd', { type: 'string', description: 'external parser: parsing command template with {model} {input} {output}' })
+      .option('quiet', { type: 'boolean', default: false, description: 'no progress output' })
+      .option('json', { type: 'boolean', default: false, description: 'print a JSON summary on stdout' })
+      .example('$0 jackknife --plan plan/ --parse huts-dev.trees huts-test.trees -o nbest/', 'the embedded parser, 50-best')
+      .example('$0 jackknife --plan plan/ --train-cmd "myparser train {train} {model}" --parse-cmd "myparser parse {model} {input} {output}" -o nbest/', 'a parser of your own'),
+  handler: async (args) => {
+    const pcfg: Record<string, unknown> = {};
+    for (const kv of (args.pcfg as string[] | undefined) ?? []) {
+      const eq = kv.indexOf('=');
+      if (eq <= 0) throw new UsageError(`expected \`--pcfg NAME=VALUE\`, got \`${kv}\``);
+      pcfg[kv.slice(0, eq)] = kv.slice(eq + 1);
+    }
+    const summary = await runJackknife({
+      plan: args.plan as string,
+      out: args.out as string,
+      nbest: args.nbest as number,
+      workers: args.workers as number,
+      parse: args.parse as string[] | undefined,
+      trainCmd: args['train-cmd'] as string | undefined,
+      parseCmd: args['parse-cmd'] as string | undefined,
+      pcfg,
+      quiet: args.quiet as boolean,
+    }, (l) => console.error(l));
+    if (args.json) console.log(JSON.stringify(summary));
+    return 0;
+  },
+};
