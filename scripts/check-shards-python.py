@@ -7,6 +7,7 @@ given on stdin: same sentences in the same order, same fields, same absolute
 feature vectors.
 
   node bin/sheaf.js inspect DIR --jsonl | /usr/bin/python3 scripts/check-shards-python.py DIR
+  (or with the view in a file on stdin)
 """
 import json
 import re

@@ -7,21 +7,24 @@
 import yargs, { type Argv } from 'yargs';
 import { DataError, UsageError } from './core/errors.js';
 import { demoCommand } from './commands/demo.js';
+import { evalCommand } from './commands/eval.js';
+import { exportCommand } from './commands/export.js';
 import { inspectCommand } from './commands/inspect.js';
 import { jackknifeCommand } from './commands/jackknife.js';
+import { rerankCommand } from './commands/rerank.js';
 import { splitCommand } from './commands/split.js';
+import { trainCommand } from './commands/train.js';
 import { prepareCommand } from './commands/prepare.js';
 import type { CommandModule } from './commands/command.js';
 
 /** Commands of the design that later work will build; they refuse to run. */
 const PLANNED: [string, string][] = [
-  ['train', 'train a re-ranker on a shard directory'],
-  ['eval', 'base, oracle and re-ranked F1 of a model on a shard directory'],
-  ['rerank', 'pick the best tree of each n-best list with a model'],
-  ['export', 'write shards as sparse ranking text for other trainers'],
+  ['merge', 'merge shard directories made as parts (--part I/N) into one'],
+  ['report', 'one self-contained HTML page with charts of shards and a model'],
+  ['status', 'state of cluster tasks submitted for an output folder'],
 ];
 
-const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, inspectCommand, demoCommand];
+const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, demoCommand];
 
 /**
  * yargs takes a lone `-` as the end of an option's values; DESIGN.md wants

@@ -11,6 +11,19 @@ import type { Tree } from './core/tree.js';
 export type { Tree } from './core/tree.js';
 export type { SparseVector, StoredVector, Values } from './core/sparse-vector.js';
 
+/** One feature template of a pipeline, with its options defaulted. */
+export interface TemplateBlock {
+  template: string;
+  options: Record<string, unknown>;
+}
+
+/** A pipeline's resolved configuration: every option written out; what manifests record and digest. */
+export interface PipelineConfig {
+  format: 'sheaf-pipeline/1';
+  stages: { stage: string; options: Record<string, unknown> }[];
+  templates: TemplateBlock[];
+}
+
 /** Which base model produced a list: a name and a digest of what made it. */
 export interface ModelIdentity {
   parser: string;

@@ -19,16 +19,18 @@ describe('sheaf CLI', () => {
     }
   });
 
-  it('runs the demo on the shipped corpus and prints base and oracle F1 as JSON', () => {
+  it('runs the demo end to end and prints base, oracle and re-ranked F1 as JSON, re-ranked significantly above base', () => {
     const r = sheaf('demo', '--json', '--workers', '2');
     expect(r.status).toBe(0);
     const s = JSON.parse(r.stdout);
     expect(s.prepare.train).toMatchObject({ read: 4000, written: 4000, rejected: 0, candidates: 200000 });
     expect(s.prepare.test).toMatchObject({ read: 400, written: 400, rejected: 0 });
-    for (const k of ['base', 'oracle']) expect(Object.keys(s[k]).sort()).toEqual(['f1', 'precision', 'recall', 'sentences']);
-    // The oracle can only be at least as good as the base 1-best.
-    expect(s.oracle.f1).toBeGreaterThanOrEqual(s.base.f1);
-    expect(s.reranked).toBeNull();
+    for (const k of ['base', 'oracle', 'reranked']) expect(Object.keys(s[k]).sort()).toEqual(['f1', 'precision', 'recall', 'sentences']);
+    // The oracle bounds both; the demo corpus makes attachments depend on word classes the features see.
+    expect(s.oracle.f1).toBeGreaterThanOrEqual(s.reranked.f1);
+    expect(s.reranked.f1).toBeGreaterThan(s.base.f1);
+    expect(s.bootstrap).toMatchObject({ samples: 10000, seed: 0 });
+    expect(s.bootstrap.p).toBeLessThan(0.01);
   });
 
   it('runs prepare on a dump read from stdin and prints a JSON summary', async () => {

@@ -7,7 +7,7 @@
  * Pure: no node: imports.
  */
 import { UsageError } from '../core/errors.js';
-import type { ModelIdentity } from '../records.js';
+import type { ModelIdentity, PipelineConfig } from '../records.js';
 import { SHARD_FORMAT } from './shard-record.js';
 
 export { SHARD_FORMAT };
@@ -68,7 +68,8 @@ export interface NamesSummary {
 export interface ShardManifest {
   format: typeof SHARD_FORMAT;
   tool: { name: 'sheaf'; version: string };
-  pipeline: { digest: string; config: unknown };
+  /** The resolved pipeline config, its digest, and the file holding the bytes of the files it reads. */
+  pipeline: { digest: string; config: PipelineConfig; files: string };
   hashing: { bits: number; seed: number; rule: string; dropUniform: boolean };
   compression: { method: 'gzip' | 'none'; level: number; unit: 'sentence' };
   /** The record layout, in words (the README documents the bytes). */

@@ -6,7 +6,7 @@
  */
 import { UsageError } from '../core/errors.js';
 import type { ScoringOptions } from '../core/parseval.js';
-import { checkOptions, type OptionValues } from '../features/options.js';
+import { checkOptions } from '../features/options.js';
 import { TEMPLATES } from '../features/registry.js';
 import type { ConfigureContext, ConfiguredTemplate } from '../features/template.js';
 import type { EncodeOptions } from '../stages/encode-shard.js';
@@ -14,20 +14,11 @@ import type { HashingOptions } from '../stages/hash-features.js';
 import type { ParseOptions } from '../stages/parse-candidates.js';
 import type { ShardLimits } from '../stages/write-shards.js';
 import { STAGES } from './stages.js';
+import type { PipelineConfig, TemplateBlock } from '../records.js';
 
 export const PIPELINE_FORMAT = 'sheaf-pipeline/1';
 
-export interface TemplateBlock {
-  template: string;
-  options: OptionValues;
-}
-
-/** The resolved configuration: everything defaulted; what the manifest records and digests. */
-export interface PipelineConfig {
-  format: typeof PIPELINE_FORMAT;
-  stages: { stage: string; options: OptionValues }[];
-  templates: TemplateBlock[];
-}
+export type { PipelineConfig, TemplateBlock } from '../records.js';
 
 export interface Pipeline {
   config: PipelineConfig;

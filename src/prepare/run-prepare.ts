@@ -19,6 +19,7 @@ import type { FoldPlan } from '../formats/fold-plan.js';
 import { emptyState, headerLine, lastState, shardLine, type WriterState } from '../formats/journal.js';
 import { formatManifest, RECORD_LAYOUT, SHARD_FORMAT, type NamesSummary, type ShardManifest, type Totals } from '../formats/manifest.js';
 import { formatNames } from '../formats/names-file.js';
+import { encodePipelineFiles, PIPELINE_FILES } from '../formats/pipeline-files.js';
 import { fileSha256, removeIfExists, writeFileAtomic } from '../io/files.js';
 import { loadFoldPlan } from '../io/fold-plan-file.js';
 import { GoldIndex } from '../io/gold-index.js';
@@ -260,7 +261,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const manifest: ShardManifest = {
     format: SHARD_FORMAT,
     tool: { name: 'sheaf', version: TOOL_VERSION },
-    pipeline: { digest: pipeline.digest, config: pipeline.config },
+    pipeline: { digest: pipeline.digest, config: pipeline.config, files: PIPELINE_FILES },
     hashing: { bits: pipeline.hashing.bits, seed: pipeline.hashing.seed, rule: HASH_RULE, dropUniform: pipeline.hashing.dropUniform },
     compression: { method: pipeline.encode.compression, level: pipeline.encode.level, unit: 'sentence' },
     record: RECORD_LAYOUT,
@@ -275,6 +276,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     rejects: { file: REJECTS, count: state.rejected + goldRejected },
     names: namesSummary,
   };
+  writeFileAtomic(join(o.out, PIPELINE_FILES), encodePipelineFiles(pipeline.files));
   writeFileAtomic(join(o.out, MANIFEST), formatManifest(manifest));
   removeIfExists(join(o.out, JOURNAL));
   const summary: PrepareSummary = { out: o.out, upToDate: false, resumedShards, shards: state.shards.length, ...totals, seconds: (Date.now() - started) / 1000 };

@@ -1,0 +1,61 @@
+/**
+ * The job module of `rerank`'s worker threads: the gold-free chain (parse →
+ * extract → hash) from the model's pipeline, then each list's candidates
+ * scored with the model's weights and the best picked (ties to the lower
+ * base rank). A list that cannot be featurised falls back to its base
+ * 1-best when that parses, and says why.
+ */
+import { DataError } from '../core/errors.js';
+import { createVocabulary } from '../core/interner.js';
+import { dot, splitParts } from '../core/sparse-vector.js';
+import { rebuildPipeline } from '../pipeline/pipeline.js';
+import type { JobHandler } from '../pool/ordered-pool.js';
+import { createFeaturiser } from '../prepare/sentence-chain.js';
+import type { CandidateText, PipelineConfig } from '../records.js';
+import { parseNormalised } from '../stages/parse-candidates.js';
+import { pick, scores, type RankingList } from '../train/ranking.js';
+
+export interface RerankInit {
+  config: PipelineConfig;
+  files: Record<string, Uint8Array>;
+  weights: Float32Array;
+}
+
+export interface RerankJob {
+  candidates: CandidateText[];
+}
+
+export type RerankResult =
+  | { rank: number; score: number }
+  /** Not re-ranked: the base 1-best (rank 0) when it parses, else none (-1), and why. */
+  | { rank: number; score: null; why: string };
+
+export function createJobHandler(init: RerankInit): JobHandler<RerankJob, RerankResult> {
+  const pipeline = rebuildPipeline(init.config, init.files);
+  const featurise = createFeaturiser(pipeline);
+  const w = init.weights;
+  let vocab = createVocabulary();
+  let jobs = 0;
+  const run = (job: RerankJob): RerankResult => {
+    if (++jobs % 20000 === 0) vocab = createVocabulary();
+    if (job.candidates.length === 0) return { rank: -1, score: null, why: 'the list has no candidates' };
+    try {
+      const { vectors } = featurise.run(job.candidates, vocab);
+      // Scored exactly as eval scores stored lists (the same parts, the same sums), so both pick alike.
+      const list: RankingList = { gold: 0, len: 0, cands: vectors.diffs.map((d, rank) => ({ rank, matched: 0, test: 0, diff: splitParts(d) })) };
+      const s = scores(list, w);
+      const best = pick(list, s);
+      // The reported score is the whole candidate's: w · reference + w · difference.
+      return { rank: best, score: dot(splitParts(vectors.ref!), w) + s[best] };
+    } catch (e) {
+      if (!(e instanceof DataError)) throw e;
+      try {
+        parseNormalised(job.candidates[0].tree, vocab, pipeline.parse, 'candidate 0');
+        return { rank: 0, score: null, why: e.reason };
+      } catch {
+        return { rank: -1, score: null, why: e.reason };
+      }
+    }
+  };
+  return { run: (jobs) => ({ results: jobs.map(run), transfer: [] }) };
+}
