@@ -128,6 +128,24 @@ export interface ShardCandidate {
   diff: StoredVector;
 }
 
+/**
+ * A list to rank, flat (what trainers, eval and rerank score): candidate c's
+ * vector relative to the list's reference is the entries idx/val[start[c] …
+ * start[c + 1]) — its integer part, then its real part. Made by the shard
+ * reader's fast path (formats/shard-record.ts) or from a ShardSentence.
+ */
+export interface RankingList {
+  id: string;
+  gold: number;
+  len: number;
+  rank: Int32Array;
+  matched: Int32Array;
+  test: Int32Array;
+  start: Int32Array;
+  idx: Uint32Array;
+  val: Float64Array;
+}
+
 /** One sentence as a shard stores it (formats/shard-record.ts). */
 export interface ShardSentence {
   id: string;

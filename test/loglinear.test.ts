@@ -14,7 +14,7 @@ import { seededRandom } from '../src/core/random.js';
 import type { StoredVector } from '../src/core/sparse-vector.js';
 import { minimize } from '../src/train/lbfgs.js';
 import { LoglinearObjective } from '../src/train/loglinear.js';
-import type { RankingList } from '../src/train/ranking.js';
+import { rankingList, type RankingList } from '../src/train/ranking.js';
 import { readFixture } from './helpers/fixtures.js';
 
 function stored(x: number[]): StoredVector {
@@ -33,7 +33,7 @@ describe('log-linear re-ranker', () => {
   it('matches scikit-learn\'s L2 logistic regression on two-candidate lists (python3-sklearn fixture)', async () => {
     const fx = readFixture<{ C: number; coef: number[]; lists: { a: number[]; b: number[]; best: number }[] }>('sklearn-loglinear.json');
     const D = fx.coef.length;
-    const lists: RankingList[] = fx.lists.map((l) => ({
+    const lists: RankingList[] = fx.lists.map((l) => rankingList({
       gold: 10, len: 10,
       cands: [l.a, l.b].map((v, rank) => ({ rank, matched: rank === l.best ? 10 : 6, test: 10, diff: stored(v) })),
     }));
@@ -53,13 +53,13 @@ describe('log-linear re-ranker', () => {
     const index = Int32Array.from({ length: D }, (_, b) => (b === 3 ? -1 : b < 3 ? b : b - 1));
     const lists: RankingList[] = Array.from({ length: 30 }, () => {
       const m = 2 + Math.floor(rand() * 4);
-      return {
+      return rankingList({
         gold: 8, len: 8,
         cands: Array.from({ length: m }, (_, rank) => ({
           rank, matched: Math.floor(rand() * 3) * 3, test: 8,
           diff: stored(Array.from({ length: D }, () => (rand() < 0.5 ? 0 : rand() < 0.8 ? Math.round((rand() - 0.5) * 6) : rand() * 4 - 2))),
         })),
-      };
+      });
     });
     const obj = new LoglinearObjective(index, 0.3);
     const x = Float64Array.from({ length: D - 1 }, () => rand() - 0.5);

@@ -12,7 +12,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { AveragedPerceptron } from '../src/train/perceptron.js';
-import type { RankingList } from '../src/train/ranking.js';
+import { rankingList, type RankingList } from '../src/train/ranking.js';
 import { seededRandom } from '../src/core/random.js';
 import type { StoredVector } from '../src/core/sparse-vector.js';
 
@@ -25,7 +25,7 @@ function stored(x: number[]): StoredVector {
 
 /** A list whose candidate `best` has F1 1 and the others lower (gold 10 brackets). */
 function list(vectors: number[][], best: number): RankingList {
-  return { gold: 10, len: 10, cands: vectors.map((v, rank) => ({ rank, matched: rank === best ? 10 : 5, test: 10, diff: stored(v) })) };
+  return rankingList({ gold: 10, len: 10, cands: vectors.map((v, rank) => ({ rank, matched: rank === best ? 10 : 5, test: 10, diff: stored(v) })) });
 }
 
 describe('averaged perceptron', () => {
@@ -109,7 +109,7 @@ describe('averaged perceptron', () => {
     const p = new AveragedPerceptron(3, Uint8Array.of(1, 0, 1));
     p.step(list([[1, 0, 0], [0, 1, 1]], 1));
     expect(Array.from(p.w)).toEqual([-1, 0, 1]);
-    const flat: RankingList = { gold: 4, len: 4, cands: [{ rank: 0, matched: 2, test: 4, diff: stored([5, 0, 0]) }, { rank: 1, matched: 2, test: 4, diff: stored([0, 5, 0]) }] };
+    const flat: RankingList = rankingList({ gold: 4, len: 4, cands: [{ rank: 0, matched: 2, test: 4, diff: stored([5, 0, 0]) }, { rank: 1, matched: 2, test: 4, diff: stored([0, 5, 0]) }] });
     expect(p.step(flat)).toBe(false);
   });
 });

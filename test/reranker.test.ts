@@ -23,7 +23,7 @@ import { readShardDir } from '../src/io/read-shards.js';
 import { dumpName, runJackknife } from '../src/jackknife/run-jackknife.js';
 import { runPrepare } from '../src/prepare/run-prepare.js';
 import { runRerank } from '../src/rerank/run-rerank.js';
-import { pick, scores } from '../src/train/ranking.js';
+import { pick, rankingList, scores } from '../src/train/ranking.js';
 import { runTrain } from '../src/train/run-train.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
@@ -92,7 +92,8 @@ describe('eval', () => {
     let matched = 0;
     let test = 0;
     for await (const s of readShardDir(at('dev-shards'))) {
-      const c = s.cands[pick(s, scores(s, m.weights))];
+      const l = rankingList(s);
+      const c = s.cands[pick(l, scores(l, m.weights))];
       matched += c.matched;
       test += c.test;
     }
@@ -139,7 +140,10 @@ describe('rerank', () => {
     // On well-formed lists the choice is eval's.
     const m = loadModel(at('model-a'));
     const chosen = new Map<string, number>();
-    for await (const sent of readShardDir(at('dev-shards'))) chosen.set(sent.id, sent.cands[pick(sent, scores(sent, m.weights))].rank);
+    for await (const sent of readShardDir(at('dev-shards'))) {
+      const l = rankingList(sent);
+      chosen.set(sent.id, sent.cands[pick(l, scores(l, m.weights))].rank);
+    }
     for (const r of rows.slice(4)) expect(r.rank, r.id).toBe(chosen.get(r.id));
     // Plain output: one bracketed tree per line.
     const plain: string[] = [];

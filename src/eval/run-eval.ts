@@ -9,8 +9,8 @@
 import { baseChoice, F1Table, oracleChoice, type F1Row } from '../core/f1-table.js';
 import { UsageError } from '../core/errors.js';
 import { loadModel } from '../io/model-dir.js';
-import { readManifest, readShardDir } from '../io/read-shards.js';
-import { pick, scores } from '../train/ranking.js';
+import { readManifest, readRankingListDir } from '../io/read-shards.js';
+import { pick, scored, scores } from '../train/ranking.js';
 import { pairedBootstrap, type BootstrapResult } from './bootstrap.js';
 
 export interface EvalOptions {
@@ -56,26 +56,28 @@ export async function runEval(o: EvalOptions): Promise<EvalSummary> {
   const tb: number[] = [];
   const chosenRanks: number[] = [];
   let s = new Float64Array(64);
-  for await (const list of readShardDir(o.shards, m)) {
-    if (s.length < list.cands.length) s = new Float64Array(list.cands.length * 2);
-    const b = baseChoice(list);
-    const or = oracleChoice(list);
-    const r = list.cands.length ? pick(list, scores(list, model.weights, s)) : -1;
+  for await (const list of readRankingListDir(o.shards, m)) {
+    const n = list.rank.length;
+    if (s.length < n) s = new Float64Array(n * 2);
+    const sentence = scored(list);
+    const b = baseChoice(sentence);
+    const or = oracleChoice(sentence);
+    const r = n ? pick(list, scores(list, model.weights, s)) : -1;
     // Rows this sentence counts in: all, ≤ 40 words, its length bucket.
     const lb = LENGTH_BUCKETS.find(([lo, hi]) => list.len >= lo && list.len <= hi) ?? LENGTH_BUCKETS[0];
     const rows = ['', `len:${bucketName(lb)}:`];
     if (list.len <= 40) rows.push('le40:');
     for (const prefix of rows) {
-      t.addChoice(`${prefix}base`, list, b);
-      t.addChoice(`${prefix}oracle`, list, or);
-      t.addChoice(`${prefix}reranked`, list, r);
+      t.addChoice(`${prefix}base`, sentence, b);
+      t.addChoice(`${prefix}oracle`, sentence, or);
+      t.addChoice(`${prefix}reranked`, sentence, r);
     }
     gold.push(list.gold);
-    ma.push(r >= 0 ? list.cands[r].matched : 0);
-    ta.push(r >= 0 ? list.cands[r].test : 0);
-    mb.push(b >= 0 ? list.cands[b].matched : 0);
-    tb.push(b >= 0 ? list.cands[b].test : 0);
-    if (r >= 0) chosenRanks[list.cands[r].rank] = (chosenRanks[list.cands[r].rank] ?? 0) + 1;
+    ma.push(r >= 0 ? list.matched[r] : 0);
+    ta.push(r >= 0 ? list.test[r] : 0);
+    mb.push(b >= 0 ? list.matched[b] : 0);
+    tb.push(b >= 0 ? list.test[b] : 0);
+    if (r >= 0) chosenRanks[list.rank[r]] = (chosenRanks[list.rank[r]] ?? 0) + 1;
   }
   const rowsOf = (prefix: string): Rows => ({ base: t.row(`${prefix}base`), oracle: t.row(`${prefix}oracle`), reranked: t.row(`${prefix}reranked`) });
   const all = rowsOf('');

@@ -30,8 +30,8 @@
  */
 import { DataError } from '../core/errors.js';
 import { isStoredInteger, type StoredVector, type Values } from '../core/sparse-vector.js';
-import type { ShardCandidate, ShardSentence } from '../records.js';
-import { MsgpackWriter, type Decoded } from './msgpack.js';
+import type { RankingList, ShardCandidate, ShardSentence } from '../records.js';
+import { MsgpackError, MsgpackWriter, type Decoded } from './msgpack.js';
 
 export const SHARD_FORMAT = 'sheaf-shards/2';
 
@@ -253,3 +253,273 @@ export function toShardSentence(raw: Decoded): ShardSentence {
   if (cands.length > 0 && ref === null) bad(`${where}: expected a \`ref\` vector for a list with candidates`);
   return { id: id as string, pos: int(raw, 'pos', where), fold, gold: int(raw, 'gold', where), len: int(raw, 'len', where), flag: flag as ShardSentence['flag'], ref, cands };
 }
+
+/** A ranking list from per-candidate stored vectors. */
+export function rankingList(s: { id?: string; gold: number; len: number; cands: readonly { rank: number; matched: number; test: number; diff: StoredVector }[] }): RankingList {
+  const m = s.cands.length;
+  const start = new Int32Array(m + 1);
+  let n = 0;
+  s.cands.forEach((c, k) => {
+    start[k] = n;
+    n += c.diff.idx.length + c.diff.ridx.length;
+  });
+  start[m] = n;
+  const idx = new Uint32Array(n);
+  const val = new Float64Array(n);
+  s.cands.forEach((c, k) => {
+    let o = start[k];
+    const { idx: a, val: av, ridx: b, rval: bv } = c.diff;
+    for (let j = 0; j < a.length; j++, o++) {
+      idx[o] = a[j];
+      val[o] = av[j];
+    }
+    for (let j = 0; j < b.length; j++, o++) {
+      idx[o] = b[j];
+      val[o] = bv[j];
+    }
+  });
+  return {
+    id: s.id ?? '',
+    gold: s.gold,
+    len: s.len,
+    rank: Int32Array.from(s.cands, (c) => c.rank),
+    matched: Int32Array.from(s.cands, (c) => c.matched),
+    test: Int32Array.from(s.cands, (c) => c.test),
+    start,
+    idx,
+    val,
+  };
+}
+
+/**
+ * The fast path for readers that score lists (train, eval): one sentence
+ * record straight into a flat RankingList, without building a map per
+ * candidate. Expects exactly the layout encodeSentence writes; on anything
+ * else it returns null, and the caller decodes the record the general way
+ * (which names the problem). Throws MsgpackError(truncated) when the bytes end
+ * inside the record.
+ */
+export class RankingListDecoder {
+  private idx = new Uint32Array(4096);
+  private val = new Float64Array(4096);
+  private rank = new Int32Array(64);
+  private matched = new Int32Array(64);
+  private test = new Int32Array(64);
+  private start = new Int32Array(65);
+  private b: Uint8Array = new Uint8Array(0);
+  private v: DataView = new DataView(new ArrayBuffer(0));
+  private o = 0;
+  private readonly utf8 = new TextDecoder('utf-8', { fatal: true });
+  /** Where the last decoded record ended. */
+  end = 0;
+
+  decode(bytes: Uint8Array, at: number): RankingList | null {
+    this.b = bytes;
+    this.v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+    this.o = at;
+    try {
+      return this.sentence();
+    } catch (e) {
+      if (e instanceof MsgpackError) throw e;
+      if (e === MISMATCH) return null;
+      throw e;
+    }
+  }
+
+  private need(n: number): void {
+    if (this.o + n > this.b.length) throw new MsgpackError(this.o, 'the data ends inside a record (truncated)', true);
+  }
+
+  private byte(): number {
+    this.need(1);
+    return this.b[this.o++];
+  }
+
+  private key(k: Uint8Array): void {
+    const n = k.length;
+    this.need(n + 1);
+    if (this.b[this.o] !== (0xa0 | n)) throw MISMATCH;
+    for (let i = 0; i < n; i++) if (this.b[this.o + 1 + i] !== k[i]) throw MISMATCH;
+    this.o += n + 1;
+  }
+
+  private uint(): number {
+    const t = this.byte();
+    if (t <= 0x7f) return t;
+    const v = this.v;
+    switch (t) {
+      case 0xcc: this.need(1); return this.b[this.o++];
+      case 0xcd: this.need(2); { const x = v.getUint16(this.o); this.o += 2; return x; }
+      case 0xce: this.need(4); { const x = v.getUint32(this.o); this.o += 4; return x; }
+      case 0xcf: this.need(8); { const x = Number(v.getBigUint64(this.o)); this.o += 8; if (!Number.isSafeInteger(x)) throw MISMATCH; return x; }
+    }
+    throw MISMATCH;
+  }
+
+  private strLen(): number {
+    const t = this.byte();
+    if ((t & 0xe0) === 0xa0) return t & 0x1f;
+    if (t === 0xd9) { this.need(1); return this.b[this.o++]; }
+    if (t === 0xda) { this.need(2); const n = this.v.getUint16(this.o); this.o += 2; return n; }
+    if (t === 0xdb) { this.need(4); const n = this.v.getUint32(this.o); this.o += 4; return n; }
+    throw MISMATCH;
+  }
+
+  private binLen(): number {
+    const t = this.byte();
+    if (t === 0xc4) { this.need(1); return this.b[this.o++]; }
+    if (t === 0xc5) { this.need(2); const n = this.v.getUint16(this.o); this.o += 2; return n; }
+    if (t === 0xc6) { this.need(4); const n = this.v.getUint32(this.o); this.o += 4; return n; }
+    throw MISMATCH;
+  }
+
+  private skipStr(): void {
+    const n = this.strLen();
+    this.need(n);
+    this.o += n;
+  }
+
+  /** A dtype string: its width and whether it is a float. */
+  private dtype(real: boolean): ValueType {
+    const n = this.strLen();
+    this.need(n);
+    if (n !== 3 || this.b[this.o] !== 0x3c /* < */) throw MISMATCH;
+    const k = this.b[this.o + 1];
+    const w = this.b[this.o + 2];
+    this.o += 3;
+    if (!real && k === 0x69 /* i */ && (w === 0x31 || w === 0x32 || w === 0x34)) return w === 0x31 ? '<i1' : w === 0x32 ? '<i2' : '<i4';
+    if (real && k === 0x66 /* f */ && (w === 0x34 || w === 0x38)) return w === 0x34 ? '<f4' : '<f8';
+    throw MISMATCH;
+  }
+
+  private grow(n: number): void {
+    if (n <= this.idx.length) return;
+    let size = this.idx.length * 2;
+    while (size < n) size *= 2;
+    const i = new Uint32Array(size);
+    i.set(this.idx);
+    this.idx = i;
+    const v = new Float64Array(size);
+    v.set(this.val);
+    this.val = v;
+  }
+
+  /** One part (indices bin, values bin, dtype) appended at `n`; returns the new length. */
+  private part(n: number, ik: Uint8Array, vk: Uint8Array, tk: Uint8Array, real: boolean): number {
+    this.key(ik);
+    const ib = this.binLen();
+    if (ib % 4 !== 0) throw MISMATCH;
+    this.need(ib);
+    const iAt = this.o;
+    this.o += ib;
+    this.key(vk);
+    const vb = this.binLen();
+    this.need(vb);
+    const vAt = this.o;
+    this.o += vb;
+    this.key(tk);
+    const t = this.dtype(real);
+    const count = ib / 4;
+    if (vb !== count * WIDTH[t]) throw MISMATCH;
+    this.grow(n + count);
+    const v = this.v;
+    const idx = this.idx;
+    const val = this.val;
+    let prev = -1;
+    for (let k = 0; k < count; k++) {
+      const x = v.getUint32(iAt + 4 * k, true);
+      if (x <= prev) throw MISMATCH;
+      prev = x;
+      idx[n + k] = x;
+    }
+    switch (t) {
+      case '<i1': for (let k = 0; k < count; k++) val[n + k] = v.getInt8(vAt + k); break;
+      case '<i2': for (let k = 0; k < count; k++) val[n + k] = v.getInt16(vAt + 2 * k, true); break;
+      case '<i4': for (let k = 0; k < count; k++) val[n + k] = v.getInt32(vAt + 4 * k, true); break;
+      case '<f4': for (let k = 0; k < count; k++) val[n + k] = v.getFloat32(vAt + 4 * k, true); break;
+      default: for (let k = 0; k < count; k++) val[n + k] = v.getFloat64(vAt + 8 * k, true);
+    }
+    return n + count;
+  }
+
+  private sentence(): RankingList {
+    if (this.byte() !== 0x88) throw MISMATCH;
+    this.key(KEY.id);
+    const idLen = this.strLen();
+    this.need(idLen);
+    let id: string;
+    try {
+      id = this.utf8.decode(this.b.subarray(this.o, this.o + idLen));
+    } catch {
+      throw MISMATCH;
+    }
+    this.o += idLen;
+    this.key(KEY.pos);
+    this.uint();
+    this.key(KEY.fold);
+    this.need(1);
+    if (this.b[this.o] === 0xc0) this.o++;
+    else this.uint();
+    this.key(KEY.gold);
+    const gold = this.uint();
+    this.key(KEY.len);
+    const len = this.uint();
+    this.key(KEY.flag);
+    this.need(1);
+    if (this.b[this.o] === 0xc0) this.o++;
+    else this.skipStr();
+    this.key(KEY.ref);
+    this.need(1);
+    if (this.b[this.o] === 0xc0) this.o++;
+    else {
+      // The reference is not needed to rank: step over it, checking its shape.
+      if (this.byte() !== 0x86) throw MISMATCH;
+      this.part(0, KEY.idx, KEY.val, KEY.dtype, false);
+      this.part(0, KEY.ridx, KEY.rval, KEY.rdtype, true);
+    }
+    this.key(KEY.cands);
+    const t = this.byte();
+    let m: number;
+    if ((t & 0xf0) === 0x90) m = t & 0x0f;
+    else if (t === 0xdc) { this.need(2); m = this.v.getUint16(this.o); this.o += 2; }
+    else if (t === 0xdd) { this.need(4); m = this.v.getUint32(this.o); this.o += 4; }
+    else throw MISMATCH;
+    if (this.rank.length < m) {
+      this.rank = new Int32Array(m * 2);
+      this.matched = new Int32Array(m * 2);
+      this.test = new Int32Array(m * 2);
+      this.start = new Int32Array(m * 2 + 1);
+    }
+    let n = 0;
+    for (let c = 0; c < m; c++) {
+      if (this.byte() !== 0x8a) throw MISMATCH;
+      this.key(KEY.score);
+      if (this.byte() !== 0xcb) throw MISMATCH;
+      this.need(8);
+      this.o += 8;
+      this.key(KEY.rank);
+      this.rank[c] = this.uint();
+      this.key(KEY.matched);
+      this.matched[c] = this.uint();
+      this.key(KEY.test);
+      this.test[c] = this.uint();
+      this.start[c] = n;
+      n = this.part(n, KEY.idx, KEY.val, KEY.dtype, false);
+      n = this.part(n, KEY.ridx, KEY.rval, KEY.rdtype, true);
+    }
+    this.start[m] = n;
+    this.end = this.o;
+    return {
+      id, gold, len,
+      rank: this.rank.slice(0, m),
+      matched: this.matched.slice(0, m),
+      test: this.test.slice(0, m),
+      start: this.start.slice(0, m + 1),
+      idx: this.idx.slice(0, n),
+      val: this.val.slice(0, n),
+    };
+  }
+}
+
+/** Thrown inside the fast path when the record is not laid out as expected. */
+const MISMATCH = new Error('not the expected layout');

@@ -8,15 +8,37 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
 import { parseManifest, type ShardManifest } from '../formats/manifest.js';
-import { MsgpackError, MsgpackReader } from '../formats/msgpack.js';
-import { toShardSentence } from '../formats/shard-record.js';
-import type { ShardSentence } from '../records.js';
+import { MsgpackError, MsgpackReader, type Decoded } from '../formats/msgpack.js';
+import { rankingList, RankingListDecoder, toShardSentence } from '../formats/shard-record.js';
+import type { RankingList, ShardSentence } from '../records.js';
 import { readBytes } from './open-input.js';
 
 export const MANIFEST = 'manifest.json';
 
 /** Sentences of one shard file, in order. */
 export async function* readShard(file: string): AsyncGenerator<ShardSentence> {
+  yield* decodeShard(file, (raw) => toShardSentence(raw));
+}
+
+/**
+ * The lists of one shard file as flat ranking lists (what train and eval
+ * score), by the fast path; a record the fast path does not take is decoded
+ * the general way, which names any problem.
+ */
+export async function* readRankingLists(file: string): AsyncGenerator<RankingList> {
+  const fast = new RankingListDecoder();
+  yield* decodeShard(file, (raw) => rankingList(toShardSentence(raw)), (bytes, at) => {
+    const list = fast.decode(bytes, at);
+    return list ? { value: list, end: fast.end } : null;
+  });
+}
+
+/** Every list of a shard directory as flat ranking lists, shard by shard. */
+export async function* readRankingListDir(dir: string, manifest: ShardManifest = readManifest(dir)): AsyncGenerator<RankingList> {
+  for (const s of manifest.shards) yield* readRankingLists(join(dir, s.file));
+}
+
+async function* decodeShard<T>(file: string, convert: (raw: Decoded) => T, fast?: (bytes: Uint8Array, at: number) => { value: T; end: number } | null): AsyncGenerator<T> {
   const reader = new MsgpackReader(new Uint8Array(0));
   let buf: Uint8Array = new Uint8Array(0);
   let record = 0;
@@ -34,6 +56,21 @@ export async function* readShard(file: string): AsyncGenerator<ShardSentence> {
     reader.load(buf);
     for (;;) {
       if (reader.done) break;
+      if (fast) {
+        let got;
+        try {
+          got = fast(buf, reader.offset);
+        } catch (e) {
+          if (e instanceof MsgpackError && e.truncated) break;
+          throw e;
+        }
+        if (got) {
+          reader.offset = got.end;
+          record++;
+          yield got.value;
+          continue;
+        }
+      }
       let raw;
       try {
         raw = reader.decode();
@@ -41,9 +78,9 @@ export async function* readShard(file: string): AsyncGenerator<ShardSentence> {
         if (e instanceof MsgpackError && e.truncated) break;
         throw new DataError('bad-shard', `record ${record + 1} (byte ${consumed + reader.offset} of the decompressed data): ${(e as Error).message}`, { file }, { cause: e });
       }
-      let s: ShardSentence;
+      let s: T;
       try {
-        s = toShardSentence(raw);
+        s = convert(raw);
       } catch (e) {
         if (e instanceof DataError) throw new DataError('bad-shard', `record ${record + 1}: ${e.reason}`, { file }, { cause: e });
         throw e;

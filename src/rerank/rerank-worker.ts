@@ -13,7 +13,7 @@ import type { JobHandler } from '../pool/ordered-pool.js';
 import { createFeaturiser } from '../prepare/sentence-chain.js';
 import type { CandidateText, PipelineConfig } from '../records.js';
 import { parseNormalised } from '../stages/parse-candidates.js';
-import { pick, scores, type RankingList } from '../train/ranking.js';
+import { pick, rankingList, scores } from '../train/ranking.js';
 
 export interface RerankInit {
   config: PipelineConfig;
@@ -42,7 +42,7 @@ export function createJobHandler(init: RerankInit): JobHandler<RerankJob, Rerank
     try {
       const { vectors } = featurise.run(job.candidates, vocab);
       // Scored exactly as eval scores stored lists (the same parts, the same sums), so both pick alike.
-      const list: RankingList = { gold: 0, len: 0, cands: vectors.diffs.map((d, rank) => ({ rank, matched: 0, test: 0, diff: splitParts(d) })) };
+      const list = rankingList({ gold: 0, len: 0, cands: vectors.diffs.map((d, rank) => ({ rank, matched: 0, test: 0, diff: splitParts(d) })) });
       const s = scores(list, w);
       const best = pick(list, s);
       // The reported score is the whole candidate's: w · reference + w · difference.

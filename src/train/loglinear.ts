@@ -30,7 +30,7 @@ export class LoglinearObjective {
 
   /** Adds one list's loss to `value` and its gradient to g, at weights x (compact). */
   add(list: RankingList, x: Float64Array, g: Float64Array): void {
-    const m = list.cands.length;
+    const m = list.rank.length;
     if (m < 2) return;
     const f = f1s(list);
     let bestF = -Infinity;
@@ -47,16 +47,12 @@ export class LoglinearObjective {
     const s = this.s;
     const index = this.index;
     let max = -Infinity;
+    const { start, idx, val } = list;
     for (let c = 0; c < m; c++) {
-      const { idx, val, ridx, rval } = list.cands[c].diff;
       let v = 0;
-      for (let k = 0; k < idx.length; k++) {
+      for (let k = start[c]; k < start[c + 1]; k++) {
         const j = index[idx[k]];
         if (j >= 0) v += x[j] * val[k];
-      }
-      for (let k = 0; k < ridx.length; k++) {
-        const j = index[ridx[k]];
-        if (j >= 0) v += x[j] * rval[k];
       }
       s[c] = v;
       if (v > max) max = v;
@@ -79,14 +75,9 @@ export class LoglinearObjective {
     for (let c = 0; c < m; c++) {
       const coef = p[c];
       if (coef === 0) continue;
-      const { idx, val, ridx, rval } = list.cands[c].diff;
-      for (let k = 0; k < idx.length; k++) {
+      for (let k = start[c]; k < start[c + 1]; k++) {
         const j = index[idx[k]];
         if (j >= 0) g[j] += coef * val[k];
-      }
-      for (let k = 0; k < ridx.length; k++) {
-        const j = index[ridx[k]];
-        if (j >= 0) g[j] += coef * rval[k];
       }
     }
   }

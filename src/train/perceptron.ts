@@ -15,7 +15,6 @@
  * w − u/c: Collins's average of the weights after every example. Only buckets
  * allowed by the mask (the count cut-off) are ever updated. Pure.
  */
-import type { StoredVector } from '../core/sparse-vector.js';
 import { f1s, pick, scores, target, type RankingList } from './ranking.js';
 
 export class AveragedPerceptron {
@@ -35,7 +34,7 @@ export class AveragedPerceptron {
 
   /** One list: predict, update on a mistake. Returns whether it updated. */
   step(list: RankingList): boolean {
-    const m = list.cands.length;
+    const m = list.rank.length;
     if (m === 0) return false;
     try {
       return this.learn(list, m);
@@ -52,27 +51,24 @@ export class AveragedPerceptron {
     const s = scores(list, this.w, this.scratch);
     const p = pick(list, s);
     if (f[p] >= f[t]) return false;
-    this.add(list.cands[t].diff, 1);
-    this.add(list.cands[p].diff, -1);
+    this.add(list, t, 1);
+    this.add(list, p, -1);
     this.updates++;
     return true;
   }
 
-  private add(v: StoredVector, sign: number): void {
+  private add(list: RankingList, cand: number, sign: number): void {
     const { w, u, mask } = this;
     // Steps completed before this one: j − 1 for the j-th step.
     const c = this.steps;
-    const each = (idx: Uint32Array, val: ArrayLike<number>) => {
-      for (let k = 0; k < idx.length; k++) {
-        const b = idx[k];
-        if (mask && !mask[b]) continue;
-        const d = sign * val[k];
-        w[b] += d;
-        u[b] += c * d;
-      }
-    };
-    each(v.idx, v.val);
-    each(v.ridx, v.rval);
+    const { start, idx, val } = list;
+    for (let k = start[cand]; k < start[cand + 1]; k++) {
+      const b = idx[k];
+      if (mask && !mask[b]) continue;
+      const d = sign * val[k];
+      w[b] += d;
+      u[b] += c * d;
+    }
   }
 
   /** The average of w over every step so far: w − u / steps (w itself before any step). */

@@ -19,7 +19,7 @@ import { parseNames, formatNames } from '../formats/names-file.js';
 import { PIPELINE_FILES } from '../formats/pipeline-files.js';
 import { writeFileAtomic } from '../io/files.js';
 import { saveModel } from '../io/model-dir.js';
-import { readManifest, readShardDir } from '../io/read-shards.js';
+import { readManifest, readRankingListDir } from '../io/read-shards.js';
 import { TOOL_VERSION } from '../version.js';
 import { seededRandom } from '../core/random.js';
 import { minimize } from './lbfgs.js';
@@ -63,7 +63,7 @@ export async function* shuffledLists(dir: string, manifest: ShardManifest, windo
     yield* buf;
     buf = [];
   };
-  for await (const s of readShardDir(dir, manifest)) {
+  for await (const s of readRankingListDir(dir, manifest)) {
     buf.push(s);
     if (buf.length >= window) yield* flush();
   }
@@ -97,9 +97,11 @@ export function cutoffMask(dir: string, m: ShardManifest, cutoff: number): { mas
 export async function rerankedF1(dir: string, manifest: ShardManifest, w: Float64Array | Float32Array): Promise<number> {
   const t = new F1Table();
   let s = new Float64Array(64);
-  for await (const list of readShardDir(dir, manifest)) {
-    if (s.length < list.cands.length) s = new Float64Array(list.cands.length * 2);
-    t.addChoice('reranked', list, list.cands.length ? pick(list, scores(list, w, s)) : -1);
+  for await (const list of readRankingListDir(dir, manifest)) {
+    const n = list.rank.length;
+    if (s.length < n) s = new Float64Array(n * 2);
+    const r = n ? pick(list, scores(list, w, s)) : -1;
+    t.add('reranked', list.gold, r >= 0 ? { matched: list.matched[r], test: list.test[r] } : null);
   }
   return t.row('reranked').f1;
 }
@@ -182,7 +184,7 @@ export async function runTrain(o: TrainOptions, log: (line: string) => void = ()
     const result = await minimize(async (x, g) => {
       obj.begin(g);
       lists = 0;
-      for await (const list of readShardDir(o.shards, m)) {
+      for await (const list of readRankingListDir(o.shards, m)) {
         obj.add(list, x, g);
         lists++;
       }
