@@ -57,7 +57,15 @@ describe('MessagePack', () => {
 
   it('refuses a map key that is not a string', () => {
     const bytes = Uint8Array.of(0x81, 0x01, 0x02); // {1: 2}
-    expect(() => new MsgpackReader(bytes).decode()).toThrow(/expected a map key that is a short string/);
+    expect(() => new MsgpackReader(bytes).decode()).toThrow(/expected a map key that is a string/);
+  });
+
+  it('reads map keys of every string width (a long file path keys pipeline-files)', () => {
+    const long = `/${'hut-ledgers/'.repeat(30)}lexicon.tsv`; // str16 (over 255 bytes)
+    const mid = `/srv/${'crates/'.repeat(5)}lexicon.tsv`; // str8 (32–255 bytes)
+    const value = { short: 1, [mid]: 2, [long]: 3 };
+    // Written by @msgpack/msgpack (npm), an outside encoder.
+    expect(plain(new MsgpackReader(encode(value)).decode())).toEqual(value);
   });
 
   it('tells truncation apart and leaves the offset where the value started', () => {

@@ -291,12 +291,19 @@ export class MsgpackReader {
     return out;
   }
 
-  /** Map keys are short strings: decode each distinct key once. */
+  /**
+   * Map keys are strings. Short ones (fixstr: record fields) are decoded once
+   * per distinct key; longer ones (a file path keying pipeline-files) each time.
+   */
   private key(): string {
     this.need(1);
     const at = this.offset;
     const b = this.bytes[this.offset];
-    if ((b & 0xe0) !== 0xa0) throw new MsgpackError(at, 'expected a map key that is a short string');
+    if ((b & 0xe0) !== 0xa0) {
+      if (b !== 0xd9 && b !== 0xda && b !== 0xdb) throw new MsgpackError(at, 'expected a map key that is a string');
+      const k = this.value(0);
+      return k as string;
+    }
     const n = b & 0x1f;
     this.offset++;
     this.need(n);
