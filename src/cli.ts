@@ -16,6 +16,7 @@ import { splitCommand } from './commands/split.js';
 import { trainCommand } from './commands/train.js';
 import { prepareCommand } from './commands/prepare.js';
 import type { CommandModule } from './commands/command.js';
+import { TOOL_VERSION } from './version.js';
 
 /** Commands of the design that later work will build; they refuse to run. */
 const PLANNED: [string, string][] = [
@@ -38,7 +39,82 @@ function restoreDash(value: unknown): unknown {
   return value;
 }
 
+/** Edit distance (Levenshtein), for "did you mean". */
+function distance(a: string, b: string): number {
+  let prev = Array.from({ length: b.length + 1 }, (_, j) => j);
+  for (let i = 1; i <= a.length; i++) {
+    const cur = [i];
+    for (let j = 1; j <= b.length; j++) cur[j] = Math.min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1));
+    prev = cur;
+  }
+  return prev[b.length];
+}
+
+/** The closest of `names` to `word`, if close enough to be a slip. */
+export function closest(word: string, names: readonly string[]): string | null {
+  let best: string | null = null;
+  let bestD = Infinity;
+  for (const n of names) {
+    const d = n.startsWith(word) && word.length >= 2 ? 1 : distance(word, n);
+    if (d < bestD) {
+      best = n;
+      bestD = d;
+    }
+  }
+  return best !== null && bestD <= Math.max(1, Math.floor(word.length / 3)) ? best : null;
+}
+
+const commandWord = (name: string) => name.split(' ')[0];
+const kebab = (s: string) => s.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`);
+
+function commandList(): string {
+  const rows: [string, string][] = [...BUILT.map((c): [string, string] => [commandWord(c.name), c.describe]), ...PLANNED.map(([n, d]): [string, string] => [n, `${d} (not available yet)`])];
+  const width = Math.max(...rows.map(([n]) => n.length));
+  return rows.map(([n, d]) => `  ${n.padEnd(width)}  ${d}`).join('\n');
+}
+
+/** The long option names a command takes (for "did you mean"). */
+function optionNames(cmd: CommandModule): string[] {
+  // getOptions() is public in yargs but missing from its type declarations.
+  const o = (cmd.builder(yargs([])) as unknown as { getOptions(): { key: Record<string, boolean> } }).getOptions();
+  return [...Object.keys(o.key).filter((k) => k.length > 1 && k !== 'version'), 'help', 'debug'];
+}
+
+/** The one-letter aliases a command takes. */
+function shortNames(cmd: CommandModule): string[] {
+  const o = (cmd.builder(yargs([])) as unknown as { getOptions(): { key: Record<string, boolean> } }).getOptions();
+  return [...Object.keys(o.key).filter((k) => k.length === 1), 'h'];
+}
+
+/** A yargs validation message in sheaf's words, pointing at the command's own help. */
+function usageMessage(message: string, cmd: CommandModule | null): string {
+  const help = cmd ? `sheaf ${commandWord(cmd.name)} --help` : 'sheaf --help';
+  const unknown = /^Unknown arguments?: (.*)$/.exec(message);
+  if (unknown && cmd) {
+    const names = optionNames(cmd);
+    // yargs lists a dashed option twice (as given and camel-cased): keep each once.
+    const given = [...new Set(unknown[1].split(', ').map((a) => kebab(a.trim())))];
+    const typed = new Set(rawArgvOf.current.filter((a) => a.startsWith('-')).map((a) => a.replace(/^-+/, '').split('=')[0]));
+    return given.map((a) => {
+      if (!typed.has(a)) return `unexpected argument \`${a}\` (\`sheaf ${cmd.name}\` takes no more)`;
+      const guess = closest(a, names);
+      return `unknown option \`${a.length === 1 ? '-' : '--'}${a}\` for \`sheaf ${commandWord(cmd.name)}\`${guess ? `; did you mean \`--${guess}\`?` : ''}`;
+    }).join('\n') + `\n(see \`${help}\`)`;
+  }
+  const missing = /^Missing required arguments?: (.*)$/.exec(message);
+  if (missing) return `expected ${missing[1].split(', ').map((a) => `\`--${a}\``).join(', ')}\n(see \`${help}\`)`;
+  const positional = /^Not enough non-option arguments/.exec(message);
+  if (positional && cmd) {
+    const names = cmd.name.split(' ').slice(1).join(' ');
+    return `expected ${names} after \`sheaf ${commandWord(cmd.name)}\`\n(see \`${help}\`)`;
+  }
+  return `${message}\n(see \`${help}\`)`;
+}
+
+const rawArgvOf: { current: string[] } = { current: [] };
+
 export async function main(rawArgv: string[]): Promise<number> {
+  rawArgvOf.current = rawArgv;
   const argv = rawArgv.map((a) => (a === '-' ? DASH : a));
   let exitCode = 0;
   const debug = argv.includes('--debug');
@@ -48,35 +124,71 @@ export async function main(rawArgv: string[]): Promise<number> {
       if (debug && error.stack) console.error(error.stack);
       return 1;
     }
+    const errno = (error as NodeJS.ErrnoException | null)?.code;
+    if (typeof errno === 'string' && ENV_FAULTS[errno]) {
+      const path = (error as NodeJS.ErrnoException).path;
+      console.error(`sheaf: ${path ? `\`${path}\`: ` : ''}${ENV_FAULTS[errno]}`);
+      if (debug && (error as Error).stack) console.error((error as Error).stack);
+      return 1;
+    }
     console.error(`sheaf: internal error: ${error instanceof Error ? (debug ? error.stack : error.message) : String(error)}`);
     if (!debug) console.error('(run again with --debug for the stack)');
     return 2;
   };
+
+  const first = rawArgv.find((a) => !a.startsWith('-'));
+  const words = [...BUILT.map((c) => commandWord(c.name)), ...PLANNED.map(([n]) => n)];
+  const wantsMeta = rawArgv.some((a) => a === '--help' || a === '-h' || a === '--version');
+  if (first === undefined && !wantsMeta) {
+    console.error(`sheaf: expected a command. The commands:\n${commandList()}\nRun \`sheaf <command> --help\` for a command's options; \`sheaf demo\` runs the whole job on a small invented corpus.`);
+    return 1;
+  }
+  if (first !== undefined && rawArgv.indexOf(first) === 0 && !words.includes(first)) {
+    const guess = closest(first, words);
+    console.error(`sheaf: unknown command \`${first}\`${guess ? `; did you mean \`sheaf ${guess}\`?` : ''}\n(see \`sheaf --help\` for the list)`);
+    return 1;
+  }
+  const current = BUILT.find((c) => commandWord(c.name) === first) ?? null;
+  if (current) {
+    // Unknown options first: a misspelt option otherwise shows up as the required one it was meant to be.
+    const known = new Set([...optionNames(current), ...shortNames(current)]);
+    for (const a of rawArgv.slice(0, rawArgv.includes('--') ? rawArgv.indexOf('--') : undefined)) {
+      if (!a.startsWith('-') || a === '-' || /^-\d/.test(a)) continue;
+      const name = a.replace(/^--?/, '').split('=')[0];
+      const camel = name.replace(/-([a-z])/g, (_, c: string) => c.toUpperCase());
+      if (known.has(name) || known.has(kebab(camel)) || (name.startsWith('no-') && known.has(name.slice(3)))) continue;
+      const guess = closest(name, optionNames(current));
+      console.error(`sheaf: unknown option \`${a.split('=')[0]}\` for \`sheaf ${commandWord(current.name)}\`${guess ? `; did you mean \`--${guess}\`?` : ''}\n(see \`sheaf ${commandWord(current.name)} --help\`)`);
+      return 1;
+    }
+  }
 
   let cli: Argv = yargs(argv)
     .scriptName('sheaf')
     .usage('$0 <command> [options]\n\nPrepare, train and evaluate discriminative re-rankers over n-best parses.')
     .option('debug', { type: 'boolean', description: 'show stack traces of errors', global: true })
     .strict()
-    .demandCommand(1, 'expected a command; see the list above')
-    .recommendCommands()
+    .demandCommand(1, 'expected a command')
     .help()
-    .version()
-    .wrap(Math.min(100, process.stdout.columns || 100))
+    // From sheaf's own package, whatever folder it runs in.
+    .version(TOOL_VERSION)
+    // Help is not wrapped: examples stay on one line, to copy and paste.
+    .wrap(null)
     .exitProcess(false)
     .fail((message, error) => {
       if (error) throw error;
-      throw new UsageError(`${message}\n(see \`sheaf --help\`)`);
+      throw new UsageError(usageMessage(message, current));
     });
 
   for (const cmd of BUILT) {
-    cli = cli.command(cmd.name, cmd.describe, cmd.builder, async (args) => {
+    // --version belongs to sheaf itself, not to each command.
+    cli = cli.command(cmd.name, cmd.describe, (y) => cmd.builder(y).version(false), async (args) => {
       const restored = Object.fromEntries(Object.entries(args).map(([k, v]) => [k, restoreDash(v)]));
       exitCode = await cmd.handler(restored);
     });
   }
   for (const [name, describe] of PLANNED) {
-    cli = cli.command(`${name}`, `${describe} (not available yet)`, (y) => y.strict(false), () => {
+    cli = cli.command(`${name}`, `${describe} (not available yet)`, (y) => y.strict(false).version(false), () => {
       throw new UsageError(`\`sheaf ${name}\` is not available yet in this version; see the README for what is built`);
     });
   }
@@ -87,3 +199,17 @@ export async function main(rawArgv: string[]): Promise<number> {
   }
   return exitCode;
 }
+
+/** Faults of the machine, not of sheaf: what they mean for the user (status 1). */
+const ENV_FAULTS: Record<string, string> = {
+  EACCES: 'permission denied; choose a file or folder you can read and write, or change its permissions',
+  EPERM: 'operation not permitted; choose a file or folder you can read and write',
+  EROFS: 'the file system is read-only; write the output somewhere else',
+  ENOSPC: 'no space left on the device; free some space or write the output elsewhere, then run the command again (a prepare run resumes from its last complete shard)',
+  EDQUOT: 'disk quota exceeded; free some space or write the output elsewhere, then run the command again',
+  EEXIST: 'already exists where sheaf needs to make a folder or file; choose another output path',
+  ENOTDIR: 'a part of this path is a file, not a folder; choose another path',
+  EISDIR: 'is a folder; expected a file',
+  ENOENT: 'no such file or folder',
+  EMFILE: 'too many open files; raise the limit (ulimit -n) or give fewer inputs at once',
+};

@@ -6,7 +6,7 @@
  * triples that do decide it. Set SHEAF_CORPUS_REPORT=1 to print the figures.
  */
 import { execFileSync } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -122,9 +122,13 @@ beforeAll(async () => {
 describe('demo corpus', () => {
   it('the generator writes the committed files, byte for byte', () => {
     const work = mkdtempSync(join(tmpdir(), 'sheaf-corpus-'));
-    execFileSync(process.execPath, [join(root, 'scripts/make-demo-corpus.mjs')], { cwd: work, stdio: 'pipe' });
-    for (const f of ['huts-train.trees', 'huts-dev.trees', 'huts-test.trees', 'lexicon.tsv']) {
-      expect(readFileSync(join(work, 'demo-corpus', f)).equals(readFileSync(join(dir, f))), f).toBe(true);
+    try {
+      execFileSync(process.execPath, [join(root, 'scripts/make-demo-corpus.mjs')], { cwd: work, stdio: 'pipe' });
+      for (const f of ['huts-train.trees', 'huts-dev.trees', 'huts-test.trees', 'lexicon.tsv']) {
+        expect(readFileSync(join(work, 'demo-corpus', f)).equals(readFileSync(join(dir, f))), f).toBe(true);
+      }
+    } finally {
+      rmSync(work, { recursive: true, force: true });
     }
   });
 

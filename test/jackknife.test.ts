@@ -69,8 +69,9 @@ describe('sheaf jackknife', () => {
     const leak = dump(nbest[1]).map((r) => ({ ...r, fold: 0 }));
     const f = join(dir, 'leak.jsonl.gz');
     writeFileSync(f, gzipSync(leak.map((r) => JSON.stringify(r)).join('\n')));
-    const bad = await runPrepare({ gold, nbest: [f], plan, pipeline: 'default', out: join(dir, 'shards-leak'), workers: 0, quiet: true });
-    expect(bad.written).toBe(0);
+    // Nothing written: status 1, naming the reason; the rejects stay for the user to read.
+    await expect(runPrepare({ gold, nbest: [f], plan, pipeline: 'default', out: join(dir, 'shards-leak'), workers: 0, quiet: true }))
+      .rejects.toThrow(/wrote no sentence: all 72 n-best lists read were rejected \(most often `leak` \(72\)/);
     const rejects = readFileSync(join(dir, 'shards-leak', 'rejects.jsonl'), 'utf8').trim().split('\n').map((l) => JSON.parse(l));
     expect(new Set(rejects.map((r) => r.code))).toEqual(new Set(['leak']));
   });

@@ -2,11 +2,11 @@
  * Pipeline files: the shipped ones load; a bad one fails before any data is
  * read, naming the block and listing the valid choices.
  */
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { UsageError } from '../src/core/errors.js';
 import { loadPipeline } from '../src/io/load-pipeline.js';
 import { TEMPLATES } from '../src/features/registry.js';
@@ -14,6 +14,7 @@ import { rebuildPipeline } from '../src/pipeline/pipeline.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-pipe-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 const base = JSON.parse(JSON.stringify((await import('../pipelines/default.json', { with: { type: 'json' } })).default));
 
 function withChange(change: (p: any) => void): string {

@@ -2,17 +2,18 @@
  * The streaming treebank reader: layouts, formats, gzip, and bad input. Each
  * bad-input case checks the error's code, file, line and column.
  */
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { DataError } from '../src/core/errors.js';
 import { createVocabulary } from '../src/core/interner.js';
 import { writeTree } from '../src/core/write-brackets.js';
 import { readTreebank, type ReadTreebankOptions } from '../src/io/read-treebank.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-read-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 let n = 0;
 function file(content: string | Buffer): string {
   const p = join(dir, `t${n++}`);

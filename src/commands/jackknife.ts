@@ -18,6 +18,7 @@ export const jackknifeCommand: CommandModule = {
       .option('pcfg', { type: 'string', array: true, description: 'embedded parser setting, NAME=VALUE (horizontal, vertical, unknownThreshold, lexicalSmoothing, maxUnaryChain, beam, derivationFactor)' })
       .option('train-cmd', { type: 'string', description: 'external parser: training command template with {train} {model}' })
       .option('parse-cmd', { type: 'string', description: 'external parser: parsing command template with {model} {input} {output}' })
+      .option('force', { type: 'boolean', default: false, description: 'write into a folder holding other files' })
       .option('quiet', { type: 'boolean', default: false, description: 'no progress output' })
       .option('json', { type: 'boolean', default: false, description: 'print a JSON summary on stdout' })
       .example('$0 jackknife --plan plan/ --parse huts-dev.trees huts-test.trees -o nbest/', 'the embedded parser, 50-best')
@@ -39,6 +40,7 @@ export const jackknifeCommand: CommandModule = {
       parseCmd: args['parse-cmd'] as string | undefined,
       pcfg,
       quiet: args.quiet as boolean,
+      force: args.force as boolean,
     }, (l) => console.error(l));
     if (args.json) console.log(JSON.stringify(summary));
     return 0;

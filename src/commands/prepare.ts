@@ -16,6 +16,8 @@ export const prepareCommand: CommandModule = {
       .option('plan', { type: 'string', description: 'fold plan directory (folds.json): refuse lists from a base model that saw the sentence' })
       .option('workers', { type: 'number', default: availableParallelism(), description: 'worker threads (0: run in the main thread)' })
       .option('strict', { type: 'boolean', default: false, description: 'stop at the first bad record instead of rejecting it' })
+      .option('max-reject-rate', { type: 'number', default: 0.5, description: 'fail (status 1) when more than this share of the n-best lists is rejected' })
+      .option('force', { type: 'boolean', default: false, description: 'replace shards prepared from other inputs, or write into a folder holding other files' })
       .option('quiet', { type: 'boolean', default: false, description: 'no progress output' })
       .option('json', { type: 'boolean', default: false, description: 'print a JSON summary on stdout' })
       .example('$0 prepare --gold huts-train.trees --nbest fold-*.jsonl.gz --pipeline default -o shards/', 'prepare training shards'),
@@ -28,6 +30,8 @@ export const prepareCommand: CommandModule = {
       plan: args.plan as string | undefined,
       workers: args.workers as number,
       strict: args.strict as boolean,
+      maxRejectRate: args.maxRejectRate as number,
+      force: args.force as boolean,
       quiet: args.quiet as boolean,
     });
     if (args.json) console.log(JSON.stringify(summary));

@@ -14,6 +14,7 @@ export const splitCommand: CommandModule = {
       .option('method', { choices: ['hash', 'blocks'] as const, default: 'hash' as const, description: 'hash: by a seeded hash of the id (adding sentences moves no old one); blocks: contiguous blocks' })
       .option('write-train', { type: 'boolean', default: false, description: 'also write each fold\'s training part (k − 1 copies of the corpus)' })
       .option('out', { alias: 'o', type: 'string', demandOption: true, description: 'plan folder' })
+      .option('force', { type: 'boolean', default: false, description: 'write into a folder holding other files' })
       .option('quiet', { type: 'boolean', default: false, description: 'no progress output' })
       .option('json', { type: 'boolean', default: false, description: 'print a JSON summary on stdout' })
       .example('$0 split huts-train.trees --folds 10 -o plan/', 'ten folds by id hash'),
@@ -26,6 +27,7 @@ export const splitCommand: CommandModule = {
       writeTrain: args['write-train'] as boolean,
       out: args.out as string,
       quiet: args.quiet as boolean,
+      force: args.force as boolean,
     }, (l) => console.error(l));
     if (args.json) console.log(JSON.stringify(summary));
     return 0;

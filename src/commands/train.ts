@@ -16,6 +16,7 @@ export const trainCommand: CommandModule = {
       .option('cutoff', { type: 'number', default: 5, description: 'keep features that vary in at least this many sentences' })
       .option('l2', { type: 'number', default: 1, description: 'log-linear: L2 penalty λ (objective + λ/2 ‖w‖²)' })
       .option('seed', { type: 'number', default: 0, description: 'seed of the order lists are visited in' })
+      .option('force', { type: 'boolean', default: false, description: 'write into a folder holding other files' })
       .option('quiet', { type: 'boolean', default: false, description: 'no progress output' })
       .option('json', { type: 'boolean', default: false, description: 'print a JSON summary on stdout' })
       .example('$0 train train-shards/ --dev dev-shards/ -o model/', 'averaged perceptron, 10 epochs, best on dev'),
@@ -30,6 +31,7 @@ export const trainCommand: CommandModule = {
       l2: args.l2 as number,
       seed: args.seed as number,
       quiet: args.quiet as boolean,
+      force: args.force as boolean,
     }, (l) => console.error(l));
     if (args.json) console.log(JSON.stringify(summary));
     return 0;

@@ -32,7 +32,10 @@ export type DataErrorCode =
   | 'no-gold'
   | 'leak'
   | 'truncated'
-  | 'bad-shard';
+  | 'bad-shard'
+  /** A whole run, not one record: nothing written, or too many records rejected. */
+  | 'nothing-written'
+  | 'too-many-rejects';
 
 function where(loc: Location): string {
   const parts: string[] = [];

@@ -6,13 +6,13 @@
  * perceptron (dev picks the epoch), and report base, oracle and re-ranked F1
  * on the test split with a paired bootstrap.
  */
-import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { dir as tmpDir } from 'tmp-promise';
+import { dir as tmpDir, setGracefulCleanup } from 'tmp-promise';
 import type { F1Row } from '../core/f1-table.js';
 import { formatEval, runEval, type EvalSummary } from '../eval/run-eval.js';
 import { runSplit } from '../folds/run-split.js';
+import { claimOutputFolder } from '../io/output-folder.js';
 import { dumpName, runJackknife } from '../jackknife/run-jackknife.js';
 import { runPrepare, type PrepareSummary } from '../prepare/run-prepare.js';
 import { runTrain, type TrainSummary } from '../train/run-train.js';
@@ -36,21 +36,33 @@ export interface DemoSummary {
   seconds: number;
 }
 
-export async function runDemo(options: { out?: string; quiet?: boolean; workers?: number }, print: (line: string) => void): Promise<DemoSummary> {
+export interface DemoOptions {
+  /** Keep everything in this folder (default: a temporary folder, removed afterwards). */
+  out?: string;
+  quiet?: boolean;
+  workers?: number;
+  /** Write into a folder that holds other files. */
+  force?: boolean;
+}
+
+/** `print` takes the results (stdout), `note` the steps as they finish (stderr). */
+export async function runDemo(options: DemoOptions, print: (line: string) => void, note: (line: string) => void = print): Promise<DemoSummary> {
   const started = Date.now();
+  if (options.out) claimOutputFolder(options.out, 'demo', { force: options.force });
+  // The temporary folder goes even when the run is interrupted (the CLI turns signals into an exit).
+  setGracefulCleanup();
   const temp = options.out ? null : await tmpDir({ prefix: 'sheaf-demo-', unsafeCleanup: true });
   const dir = options.out ?? temp!.path;
   try {
-    return await demo(dir, options, print, started, temp !== null);
+    return await demo(dir, options, print, options.quiet ? () => {} : note, started, temp !== null);
   } finally {
     await temp?.cleanup();
   }
 }
 
-async function demo(dir: string, options: { out?: string; quiet?: boolean; workers?: number }, print: (line: string) => void, started: number, temporary: boolean): Promise<DemoSummary> {
-  mkdirSync(dir, { recursive: true });
+async function demo(dir: string, options: DemoOptions, print: (line: string) => void, note: (line: string) => void, started: number, temporary: boolean): Promise<DemoSummary> {
   const quiet = true;
-  const step = (s: string) => print(`sheaf demo: ${s}`);
+  const step = (s: string) => note(`sheaf demo: ${s}`);
   step('invented hut-log treebanks: 4,000 training, 400 dev, 400 test sentences');
   const plan = join(dir, 'plan');
   const split = await runSplit({ gold: DEMO_TRAIN, folds: 10, out: plan, quiet });

@@ -10,7 +10,7 @@
  * same folder keeps a fold's recorded base model when its digest is unchanged.
  */
 import { createHash } from 'node:crypto';
-import { closeSync, existsSync, mkdirSync, openSync, readFileSync, renameSync, writeSync } from 'node:fs';
+import { closeSync, existsSync, openSync, readFileSync, renameSync, writeSync } from 'node:fs';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
 import { IdTable } from '../core/id-table.js';
@@ -18,6 +18,7 @@ import { createVocabulary } from '../core/interner.js';
 import { FOLDS_FORMAT, parseFoldPlan, type FoldEntry, type FoldPlan } from '../formats/fold-plan.js';
 import { saveFoldPlan, FOLDS_FILE } from '../io/fold-plan-file.js';
 import { readTreeTexts } from '../io/read-treebank.js';
+import { claimOutputFolder } from '../io/output-folder.js';
 import { RejectsLog } from '../io/rejects-log.js';
 import type { RejectRecord } from '../records.js';
 import { blockFold, hashFold, type FoldMethod } from './assign-folds.js';
@@ -30,6 +31,8 @@ export interface SplitOptions {
   writeTrain?: boolean;
   out: string;
   quiet?: boolean;
+  /** Write into a folder that holds other files. */
+  force?: boolean;
 }
 
 export interface SplitSummary {
@@ -95,7 +98,7 @@ export async function runSplit(o: SplitOptions, log: (line: string) => void = ()
   if (!Number.isInteger(seed) || seed < 0 || seed > 4294967295) throw new UsageError(`expected \`--seed\` to be an integer from 0 to 4294967295, got \`${o.seed}\``);
   if (method !== 'hash' && method !== 'blocks') throw new UsageError(`expected \`--method\` to be \`hash\` or \`blocks\`, got \`${method}\``);
   if (method === 'blocks' && o.gold === '-') throw new UsageError('`--method blocks` reads the treebank twice (to count it first): give a file, not `-`');
-  mkdirSync(o.out, { recursive: true });
+  claimOutputFolder(o.out, 'plan', { force: o.force });
   const previous = existsSync(join(o.out, FOLDS_FILE)) ? safePlan(join(o.out, FOLDS_FILE)) : null;
 
   const rejects = new RejectsLog(o.out, 0);

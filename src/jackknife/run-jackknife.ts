@@ -21,6 +21,7 @@ import { UsageError } from '../core/errors.js';
 import { writeTree } from '../core/write-brackets.js';
 import { emptyJackknifeState, formatJackknifeState, parseJackknifeState, staleReason, type JackknifeState, type OutputRecord } from '../formats/jackknife-state.js';
 import { fileSha256, writeFileAtomic } from '../io/files.js';
+import { claimOutputFolder } from '../io/output-folder.js';
 import { loadFoldPlan, saveFoldPlan } from '../io/fold-plan-file.js';
 import { GzipLines } from '../io/gzip-lines.js';
 import { checkPcfgSettings, encodeGrammar, PcfgTrainer, settingsKey, type PcfgSettings } from '../parser/index.js';
@@ -43,6 +44,8 @@ export interface JackknifeOptions {
   /** Settings of the embedded parser (strings from the command line, or values). */
   pcfg?: Record<string, unknown>;
   quiet?: boolean;
+  /** Write into a folder that holds other files. */
+  force?: boolean;
 }
 
 export interface JackknifeSummary {
@@ -94,6 +97,7 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
     if (names.has(n)) throw new UsageError(`\`--parse ${f}\` would write \`${n}\`, which ${names.get(n)} also writes; rename one of the files`);
     names.set(n, `\`${f}\``);
   }
+  claimOutputFolder(o.out, 'nbest', { force: o.force });
   mkdirSync(join(o.out, 'models'), { recursive: true });
   mkdirSync(join(o.out, 'logs'), { recursive: true });
   const stateFile = join(o.out, STATE_FILE);

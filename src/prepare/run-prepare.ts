@@ -9,7 +9,7 @@
  * totals are checked to reconcile before the manifest is written.
  */
 import { createHash, type Hash } from 'node:crypto';
-import { appendFileSync, existsSync, mkdirSync, readFileSync, statSync } from 'node:fs';
+import { appendFileSync, closeSync, existsSync, fstatSync, openSync, readFileSync, readSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
@@ -24,6 +24,7 @@ import { fileSha256, removeIfExists, writeFileAtomic } from '../io/files.js';
 import { loadFoldPlan } from '../io/fold-plan-file.js';
 import { GoldIndex } from '../io/gold-index.js';
 import { loadPipeline, type LoadedPipeline } from '../io/load-pipeline.js';
+import { claimOutputFolder } from '../io/output-folder.js';
 import { createProgress } from '../io/progress.js';
 import { readNbest } from '../io/read-nbest.js';
 import { MANIFEST, readManifest } from '../io/read-shards.js';
@@ -50,6 +51,10 @@ export interface PrepareOptions {
   batch?: number;
   /** Test hook: behave as if killed once this many shards are complete. */
   stopAfterShards?: number;
+  /** Replace an output from other inputs or config, or write into a folder holding other files. */
+  force?: boolean;
+  /** Fail (status 1) when more than this share of the records read is rejected (default 0.5). */
+  maxRejectRate?: number;
 }
 
 /** Thrown by the stopAfterShards test hook. */
@@ -97,29 +102,38 @@ function plannedFolds(plan: FoldPlan | null, gold: GoldIndex): Map<number, Model
 }
 
 type Item =
-  | { kind: 'reject'; reject: RejectRecord; seq: number }
-  | { kind: 'job'; seq: number; id: string; file: string; line: number | null; fold: number | null; source: ModelIdentity | null };
+  | { kind: 'reject'; reject: RejectRecord; seq: number; bytesAt: number }
+  | { kind: 'job'; seq: number; id: string; file: string; line: number | null; fold: number | null; source: ModelIdentity | null; bytesAt: number };
 
 export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const started = Date.now();
   const workers = o.workers ?? availableParallelism();
   if (!Number.isInteger(workers) || workers < 0 || workers > 256) throw new UsageError(`expected \`--workers\` to be an integer from 0 to 256, got \`${o.workers}\``);
   if (o.nbest.length === 0) throw new UsageError('expected at least one n-best dump after `--nbest`');
+  const maxRejectRate = o.maxRejectRate ?? 0.5;
+  if (!(maxRejectRate >= 0 && maxRejectRate <= 1)) throw new UsageError(`expected \`--max-reject-rate\` to be a number from 0 to 1, got \`${o.maxRejectRate}\``);
+  const fromStdin = [o.gold, ...o.nbest].filter((f) => f === '-').length;
+  if (fromStdin > 1) throw new UsageError('expected at most one input on stdin (`-`): the gold treebank and the n-best dumps are read at different times, so only one of them can come from a pipe');
   const batchSize = o.batch ?? 16;
   // Validate everything before reading any data.
   const pipeline = loadPipeline(o.pipeline);
   const planned = o.plan ? loadFoldPlan(o.plan) : null;
   const plan = planned?.plan ?? null;
   const inputs = { gold: inputInfo(o.gold), nbest: o.nbest.map(inputInfo), plan: planned ? inputInfo(planned.file) : null };
-  mkdirSync(o.out, { recursive: true });
-  const usesStdin = [o.gold, ...o.nbest].includes('-');
+  const claim = claimOutputFolder(o.out, 'shards', { force: o.force });
+  const usesStdin = fromStdin > 0;
   const progress = createProgress({ quiet: o.quiet ?? false, label: 'sheaf prepare', totalBytes: usesStdin ? null : inputs.nbest.reduce((a, i) => a + (i.bytes ?? 0), 0) });
 
   // A complete output with the same inputs and config: nothing to do.
-  const done = usesStdin ? null : upToDate(o, pipeline, planned?.file ?? null);
-  if (done) {
+  const earlier = claim.fresh ? null : earlierOutput(o, pipeline, inputs, planned?.file ?? null);
+  if (earlier?.upToDate) {
+    const m = earlier.upToDate;
     progress.done(`sheaf prepare: ${o.out} is up to date (same inputs and pipeline); nothing to do`);
-    return { out: o.out, upToDate: true, resumedShards: 0, shards: done.shards.length, ...done.totals, seconds: (Date.now() - started) / 1000 };
+    checkRejectRate(m.totals, maxRejectRate, o.out);
+    return { out: o.out, upToDate: true, resumedShards: 0, shards: m.shards.length, ...m.totals, seconds: (Date.now() - started) / 1000 };
+  }
+  if (earlier && earlier.differences.length > 0 && !o.force) {
+    throw new UsageError(`\`${o.out}\` holds shards prepared from other inputs or config (${earlier.differences.join('; ')}); choose another folder, or add --force to replace them`);
   }
 
   // Resume from the journal when the inputs and config are unchanged.
@@ -174,6 +188,8 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     const models = plannedFolds(plan, gold);
     const init: SentenceWorkerInit = { config: pipeline.config, files: pipeline.files };
     pool = await OrderedPool.start<SentenceJob, SentenceResult>({ size: workers, module: new URL('./sentence-worker.js', import.meta.url), init });
+    // Input bytes read so far, and those of the records finished (what progress shows).
+    let bytesRead = 0;
     let bytesDone = 0;
     const consume = (item: Item, res: SentenceResult | undefined) => {
       if (item.kind === 'reject') {
@@ -188,18 +204,19 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
         rejects.write(r);
         writer.rejected(item.seq + 1);
       }
+      bytesDone = item.bytesAt;
       progress.update({ sentences: state!.written + state!.rejected, candidates: state!.candidates, bytesDone });
     };
     const batches = new OrderedBatches<Item, SentenceJob, SentenceResult>(pool, { batchSize, maxInFlight: Math.max(2, pool.size * 3) }, consume);
     const addReject = async (r: RejectRecord) => {
       if (o.strict) strictStop(r);
-      await batches.push({ kind: 'reject', reject: r, seq });
+      await batches.push({ kind: 'reject', reject: r, seq, bytesAt: bytesRead });
     };
 
     for (const file of o.nbest) {
       const tap = tapFor(`nbest:${file}`);
       const before = seq;
-      for await (const item of readNbest(file, { maxCandidates: pipeline.maxCandidates, tap: (c) => { tap(c); bytesDone += c.length; } })) {
+      for await (const item of readNbest(file, { maxCandidates: pipeline.maxCandidates, tap: (c) => { tap(c); bytesRead += c.length; } })) {
         const skip = seq < state.consumed;
         if ('reject' in item) {
           if (!skip) await addReject(item.reject);
@@ -222,7 +239,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
           await addReject({ file, line, column: null, id: rec.id, code: refusal.code, reason: refusal.reason + where });
         } else {
           await batches.push(
-            { kind: 'job', seq, id: rec.id, file, line, fold: rec.fold, source: rec.source },
+            { kind: 'job', seq, id: rec.id, file, line, fold: rec.fold, source: rec.source, bytesAt: bytesRead },
             { pos: seq, id: rec.id, fold: rec.fold, gold: gold.tree(k), candidates: rec.candidates },
           );
         }
@@ -281,25 +298,94 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   removeIfExists(join(o.out, JOURNAL));
   const summary: PrepareSummary = { out: o.out, upToDate: false, resumedShards, shards: state.shards.length, ...totals, seconds: (Date.now() - started) / 1000 };
   const n = (x: number) => x.toLocaleString('en-US');
-  progress.done(`sheaf prepare: read ${n(read)} sentences: wrote ${n(state.written)} (${n(state.candidates)} candidates) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
+  progress.done(`sheaf prepare: read ${n(read)} n-best lists: wrote ${n(state.written)} (${n(state.candidates)} candidates) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
+  checkRejectRate(totals, maxRejectRate, o.out);
   return summary;
 }
 
-/** The manifest of a complete output made from the same inputs and pipeline, or null. */
-function upToDate(o: PrepareOptions, pipeline: LoadedPipeline, planFile: string | null): ShardManifest | null {
-  if (!existsSync(join(o.out, MANIFEST))) return null;
-  let m: ShardManifest;
+/** The most frequent reject codes of a rejects log (its first 64 MiB), as `code (count)`. */
+function commonReasons(file: string): string {
+  const counts = new Map<string, number>();
+  let text = '';
   try {
-    m = readManifest(o.out);
+    const fd = openSync(file, 'r');
+    try {
+      const buf = Buffer.alloc(Math.min(64 << 20, fstatSync(fd).size));
+      text = buf.subarray(0, readSync(fd, buf, 0, buf.length, 0)).toString('utf8');
+    } finally {
+      closeSync(fd);
+    }
   } catch {
-    return null;
+    return '';
   }
-  const same = m.pipeline.digest === pipeline.digest
-    && m.inputs.gold.sha256 === fileSha256(o.gold)
-    && JSON.stringify(m.inputs.nbest.map((x) => x.sha256)) === JSON.stringify(o.nbest.map(fileSha256))
-    && (m.inputs.plan?.sha256 ?? null) === (planFile ? fileSha256(planFile) : null)
-    && m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes);
-  return same ? m : null;
+  for (const m of text.matchAll(/"code":"([a-z-]+)"/g)) counts.set(m[1], (counts.get(m[1]) ?? 0) + 1);
+  const top = [...counts].sort((a, b) => b[1] - a[1] || (a[0] < b[0] ? -1 : 1)).slice(0, 3);
+  return top.map(([c, k]) => `\`${c}\` (${k.toLocaleString('en-US')})`).join(', ');
+}
+
+/** Status 1 when nothing was written or more than the allowed share of the lists read was rejected. */
+function checkRejectRate(t: Totals, max: number, out: string): void {
+  const n = (x: number) => x.toLocaleString('en-US');
+  if (t.read > 0 && t.written > 0 && t.rejected / t.read <= max) return;
+  const reasons = commonReasons(join(out, REJECTS));
+  const where = `${reasons ? `most often ${reasons}; ` : ''}the reasons are in ${join(out, REJECTS)}`;
+  if (t.read === 0) throw new DataError('nothing-written', `read no n-best list at all: the dumps are empty (${t.goldTrees > 0 ? `the gold treebank has ${n(t.goldTrees)} trees` : 'and so is the gold treebank'}); check that \`--nbest\` names the base parser's output`);
+  if (t.written === 0) throw new DataError('nothing-written', `wrote no sentence: all ${n(t.read)} n-best lists read were rejected (${where})${/no-gold|bad-json|bad-field|yield-mismatch/.test(reasons.split(',')[0]) ? '; were `--gold` and `--nbest` given the right files?' : ''}`);
+  if (t.rejected / t.read > max) {
+    throw new DataError('too-many-rejects', `rejected ${n(t.rejected)} of ${n(t.read)} n-best lists (${((100 * t.rejected) / t.read).toFixed(1)} %, over the limit of ${(100 * max).toFixed(0)} % set by \`--max-reject-rate\`; ${where}); the shards that were written are complete`);
+  }
+}
+
+/**
+ * What an earlier run left in the output folder: its manifest when it is a
+ * complete output of the same inputs and config (nothing to do), else what
+ * differs from this run (empty when nothing does: an interrupted or damaged
+ * output of the same job, which this run resumes or redoes).
+ */
+function earlierOutput(o: PrepareOptions, pipeline: LoadedPipeline, inputs: { gold: InputInfo; nbest: InputInfo[]; plan: InputInfo | null }, planFile: string | null): { upToDate: ShardManifest | null; differences: string[] } {
+  const stdin = [o.gold, ...o.nbest].includes('-');
+  if (existsSync(join(o.out, MANIFEST))) {
+    let m: ShardManifest;
+    try {
+      m = readManifest(o.out);
+    } catch {
+      // A damaged manifest: nothing to compare with, the output is redone.
+      return { upToDate: null, differences: [] };
+    }
+    if (stdin) return { upToDate: null, differences: ['an input comes from stdin, which cannot be compared with the earlier inputs'] };
+    const differences: string[] = [];
+    if (m.pipeline.digest !== pipeline.digest) differences.push(`pipeline ${m.pipeline.digest.slice(0, 15)}… then, ${pipeline.digest.slice(0, 15)}… now`);
+    if (m.inputs.gold.sha256 !== fileSha256(o.gold)) differences.push(m.inputs.gold.path === o.gold ? `the gold treebank \`${o.gold}\` has changed` : `gold treebank \`${m.inputs.gold.path}\` then, \`${o.gold}\` now`);
+    const before = m.inputs.nbest.map((x) => x.sha256);
+    const now = o.nbest.map(fileSha256);
+    if (JSON.stringify(before) !== JSON.stringify(now)) {
+      const paths = (l: readonly string[]) => (l.length <= 3 ? l.map((p) => `\`${p}\``).join(', ') : `${l.length} files`);
+      const then = m.inputs.nbest.map((x) => x.path);
+      differences.push(JSON.stringify(then) === JSON.stringify(o.nbest) ? `n-best dumps ${paths(o.nbest)} have changed` : `n-best dumps ${paths(then)} then, ${paths(o.nbest)} now`);
+    }
+    if ((m.inputs.plan?.sha256 ?? null) !== (planFile ? fileSha256(planFile) : null)) differences.push(m.inputs.plan ? (planFile ? 'another fold plan' : 'a fold plan then, none now') : 'no fold plan then, one now');
+    const complete = m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes);
+    return { upToDate: differences.length === 0 && complete ? m : null, differences };
+  }
+  if (existsSync(join(o.out, JOURNAL))) {
+    // An interrupted run: its journal names its inputs (paths, sizes, times) and pipeline.
+    let header: { pipeline?: string; inputs?: { gold?: InputInfo; nbest?: InputInfo[]; plan?: InputInfo | null } } | undefined;
+    try {
+      header = JSON.parse(readFileSync(join(o.out, JOURNAL), 'utf8').split('\n', 1)[0]).header;
+    } catch {
+      return { upToDate: null, differences: [] };
+    }
+    if (!header) return { upToDate: null, differences: [] };
+    if (stdin) return { upToDate: null, differences: ['an input comes from stdin, which cannot be compared with the interrupted run\'s inputs'] };
+    const differences: string[] = [];
+    if (header.pipeline !== pipeline.digest) differences.push('another pipeline');
+    const same = (a: InputInfo | null | undefined, b: InputInfo | null) => JSON.stringify(a ?? null) === JSON.stringify(b);
+    if (!same(header.inputs?.gold, inputs.gold)) differences.push(`gold treebank \`${header.inputs?.gold?.path ?? '?'}\` then (or it has changed since)`);
+    if (JSON.stringify(header.inputs?.nbest ?? null) !== JSON.stringify(inputs.nbest)) differences.push('other n-best dumps (or they have changed since)');
+    if (!same(header.inputs?.plan, inputs.plan)) differences.push('another fold plan');
+    return { upToDate: null, differences };
+  }
+  return { upToDate: null, differences: [] };
 }
 
 /**

@@ -18,6 +18,7 @@ import { MODEL_FORMAT, type EpochFigures, type ModelInfo } from '../formats/mode
 import { parseNames, formatNames } from '../formats/names-file.js';
 import { PIPELINE_FILES } from '../formats/pipeline-files.js';
 import { writeFileAtomic } from '../io/files.js';
+import { claimOutputFolder } from '../io/output-folder.js';
 import { saveModel } from '../io/model-dir.js';
 import { readManifest, readRankingListDir } from '../io/read-shards.js';
 import { TOOL_VERSION } from '../version.js';
@@ -39,6 +40,8 @@ export interface TrainOptions {
   /** Lists shuffled together. */
   window?: number;
   quiet?: boolean;
+  /** Write into a folder that holds other files. */
+  force?: boolean;
 }
 
 export interface TrainSummary {
@@ -132,6 +135,7 @@ export async function runTrain(o: TrainOptions, log: (line: string) => void = ()
     throw new UsageError(`the dev shards \`${o.dev}\` were prepared with another pipeline (${dm.pipeline.digest}) than the training shards (${m.pipeline.digest}); prepare both with the same pipeline`);
   }
   if (dm && dm.hashing.bits !== m.hashing.bits) throw new UsageError('the dev shards use another hash space than the training shards');
+  claimOutputFolder(o.out, 'model', { force: o.force });
   const bits = m.hashing.bits;
   const { mask, kept } = cutoffMask(o.shards, m, cutoff);
   if (kept === 0) throw new UsageError(`no feature varies in at least ${cutoff} sentences of \`${o.shards}\`; lower \`--cutoff\``);
