@@ -5,7 +5,7 @@
  * 0 ok, 1 bad input or usage, 2 internal error.
  */
 import yargs, { type Argv } from 'yargs';
-import { DataError, UsageError } from './core/errors.js';
+import { DataError, ENV_FAULTS, UsageError } from './core/errors.js';
 import { demoCommand } from './commands/demo.js';
 import { evalCommand } from './commands/eval.js';
 import { exportCommand } from './commands/export.js';
@@ -125,7 +125,7 @@ export async function main(rawArgv: string[]): Promise<number> {
       return 1;
     }
     const errno = (error as NodeJS.ErrnoException | null)?.code;
-    if (typeof errno === 'string' && ENV_FAULTS[errno]) {
+    if (typeof errno === 'string' && ENV_FAULTS[errno] !== undefined) {
       const path = (error as NodeJS.ErrnoException).path;
       console.error(`sheaf: ${path ? `\`${path}\`: ` : ''}${ENV_FAULTS[errno]}`);
       if (debug && (error as Error).stack) console.error((error as Error).stack);
@@ -199,17 +199,3 @@ export async function main(rawArgv: string[]): Promise<number> {
   }
   return exitCode;
 }
-
-/** Faults of the machine, not of sheaf: what they mean for the user (status 1). */
-const ENV_FAULTS: Record<string, string> = {
-  EACCES: 'permission denied; choose a file or folder you can read and write, or change its permissions',
-  EPERM: 'operation not permitted; choose a file or folder you can read and write',
-  EROFS: 'the file system is read-only; write the output somewhere else',
-  ENOSPC: 'no space left on the device; free some space or write the output elsewhere, then run the command again (a prepare run resumes from its last complete shard)',
-  EDQUOT: 'disk quota exceeded; free some space or write the output elsewhere, then run the command again',
-  EEXIST: 'already exists where sheaf needs to make a folder or file; choose another output path',
-  ENOTDIR: 'a part of this path is a file, not a folder; choose another path',
-  EISDIR: 'is a folder; expected a file',
-  ENOENT: 'no such file or folder',
-  EMFILE: 'too many open files; raise the limit (ulimit -n) or give fewer inputs at once',
-};

@@ -108,6 +108,9 @@ describe('output folders', () => {
     expect(claimOutputFolder(at('empty'), 'model')).toEqual({ fresh: true });
     writeFileSync(at('a-file'), 'x');
     expect(() => claimOutputFolder(at('a-file'), 'shards')).toThrow(/is a file; expected a folder for sheaf prepare/);
+    expect(() => claimOutputFolder(at('a-file/under'), 'shards')).toThrow(/cannot make the output folder .*ENOTDIR/);
+    // A file system where mkdir fails with ENOENT (Node's recursive mkdir never returns there).
+    if (existsSync('/proc/self')) expect(() => claimOutputFolder('/proc/sheaf-out/deeper', 'model')).toThrow(/cannot make the output folder `\/proc\/sheaf-out\/deeper`.*ENOENT/);
     expect(outputKinds(['manifest.json', 'shard-00000.msgpack.gz', 'rejects.jsonl'])).toEqual(['shards']);
     expect(outputKinds(['model.json', 'weights.msgpack', 'names.json'])).toEqual(['model']);
     expect(outputKinds(['folds.json', 'heldout-0.jsonl'])).toEqual(['plan']);

@@ -1,6 +1,7 @@
 /** Small file helpers shared by the writers: digests, atomic writes, cleanup. */
 import { createHash } from 'node:crypto';
-import { closeSync, existsSync, fsyncSync, openSync, readSync, renameSync, unlinkSync, writeSync } from 'node:fs';
+import { closeSync, existsSync, fsyncSync, mkdirSync, openSync, readSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
 
 /** sha256 of a file on disk, `sha256:<hex>`. */
 export function fileSha256(path: string): string {
@@ -32,6 +33,34 @@ export function writeFileAtomic(path: string, data: Uint8Array | string): void {
     closeSync(fd);
   }
   renameSync(tmp, path);
+}
+
+/**
+ * mkdir -p, one level at a time from the nearest existing folder. (Node's
+ * recursive mkdirSync never returns on some file systems, such as /proc, where
+ * mkdir fails with ENOENT; this throws the errno error instead.)
+ */
+export function makeFolder(path: string): void {
+  const missing: string[] = [];
+  let p = resolve(path);
+  for (;;) {
+    try {
+      statSync(p);
+      break;
+    } catch {
+      missing.push(p);
+      const up = dirname(p);
+      if (up === p) break;
+      p = up;
+    }
+  }
+  for (let i = missing.length - 1; i >= 0; i--) {
+    try {
+      mkdirSync(missing[i]);
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
+    }
+  }
 }
 
 export function removeIfExists(path: string): void {

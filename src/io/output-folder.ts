@@ -7,8 +7,9 @@
  * `--force`, naming what is there; a path that is a file is a usage error.
  * What counts as whose output is read from the files each command writes.
  */
-import { mkdirSync, readdirSync, statSync } from 'node:fs';
-import { UsageError } from '../core/errors.js';
+import { readdirSync, statSync } from 'node:fs';
+import { ENV_FAULTS, UsageError } from '../core/errors.js';
+import { makeFolder } from './files.js';
 
 export type OutputKind = 'plan' | 'nbest' | 'shards' | 'model' | 'demo';
 
@@ -50,9 +51,10 @@ export function claimOutputFolder(dir: string, kind: OutputKind, o: { force?: bo
     st = statSync(dir);
   } catch {
     try {
-      mkdirSync(dir, { recursive: true });
+      makeFolder(dir);
     } catch (e) {
-      throw new UsageError(`cannot make the output folder \`${dir}\` (given to \`${option}\`): ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}; choose a folder you can write to`, { cause: e });
+      const code = (e as NodeJS.ErrnoException).code ?? '';
+      throw new UsageError(`cannot make the output folder \`${dir}\` (given to \`${option}\`): ${code}${ENV_FAULTS[code] ? ` (${ENV_FAULTS[code]})` : ''}; choose a folder you can write to`, { cause: e });
     }
     return { fresh: true };
   }
