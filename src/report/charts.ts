@@ -188,8 +188,9 @@ export function positionChart(dirs: ShardDirFigures[]): Chart | null {
   }
   const values = [...rows.values()];
   if (values.length === 0) return null;
-  // Every position up to the longest list, drawn or not, so gaps show as gaps.
-  const order = [...new Set(Array.from({ length: longest }, (_, k) => positionLabel(k + 1, longest)))];
+  // Every position up to the last one chosen anywhere, drawn or not, so gaps show as gaps.
+  const last = Math.max(...dirs.flatMap((d) => [d.oracleRanks.length, d.rerankedRanks?.length ?? 0]));
+  const order = [...new Set(Array.from({ length: last }, (_, k) => positionLabel(k + 1, longest)))];
   const choices = SYSTEMS.filter((s) => values.some((v) => v.choice === s));
   const spec = {
     data: { values },

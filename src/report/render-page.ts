@@ -113,10 +113,17 @@ function hashingTable(dirs: ShardDirFigures[]): string {
 }
 
 function templateTable(dirs: ShardDirFigures[]): string {
-  const head = '<tr><th class="text">shards</th><th class="text">template</th><th>buckets fired</th><th>of which vary</th><th>share of all fired</th></tr>';
-  const body = dirs.flatMap((d) => {
-    const total = d.templates.reduce((a, t) => a + t.fired, 0);
-    return d.templates.map((t) => `<tr><td class="text">${escapeHtml(d.label)}</td><td class="text"><code>${escapeHtml(t.template)}</code></td><td>${int(t.fired)}</td><td>${int(t.varying)}</td><td>${total ? pct(t.fired / total) : '–'}</td></tr>`);
+  // One row per template, a group of columns per directory.
+  const templates = [...new Set(dirs.flatMap((d) => d.templates.map((t) => t.template)))];
+  const groups = dirs.map((d) => `<th colspan="3" class="text">${escapeHtml(d.label)}</th>`).join('');
+  const head = `<tr><th></th>${groups}</tr>\n<tr><th class="text">template</th>${dirs.map(() => '<th>buckets fired</th><th>of which vary</th><th>share</th>').join('')}</tr>`;
+  const body = templates.map((name) => {
+    const cells = dirs.map((d) => {
+      const total = d.templates.reduce((a, t) => a + t.fired, 0);
+      const t = d.templates.find((x) => x.template === name);
+      return t ? `<td>${int(t.fired)}</td><td>${int(t.varying)}</td><td>${total ? pct(t.fired / total) : '–'}</td>` : '<td>–</td><td>–</td><td>–</td>';
+    });
+    return `<tr><td class="text"><code>${escapeHtml(name)}</code></td>${cells.join('')}</tr>`;
   });
   return `<table class="templates">\n${head}\n${body.join('\n')}\n</table>`;
 }
@@ -179,7 +186,7 @@ ${figure(charts.positions, `Where the oracle's choice${withModel ? ' and the mod
 ${gapTable(dirs, withModel)}`);
 
   parts.push(`<h2 id="hashing">Hash-space occupancy and collisions</h2>
-${figure(charts.occupancy, `How many buckets of the hash space vary between the candidates of at least <i>T</i> sentences (from the count files prepare writes beside each shard).${withModel ? ' Training keeps the buckets to the right of the model\'s cut-off.' : ''} Both axes are logarithmic.`, '<p class="absent">No bucket varies within any list: there is nothing to train on in these shards.</p>')}
+${figure(charts.occupancy, `How many buckets of the hash space vary between the candidates of at least <i>T</i> sentences (from the count files prepare writes beside each shard).${withModel ? ' The dashed line is the cut-off the model was trained with: training kept the buckets that vary in at least that many of its training sentences.' : ''} Both axes are logarithmic.`, '<p class="absent">No bucket varies within any list: there is nothing to train on in these shards.</p>')}
 ${figure(charts.collisions, 'The share of distinct feature keys that landed in a bucket already taken by another key, as prepare measured it, against N/(2m), what uniform hashing of N keys into m buckets gives to first order.', '<p class="absent">The shards kept no feature names (the hashing stage\'s <code>names</code> option), so prepare did not measure collisions.</p>')}
 ${hashingTable(dirs)}`);
 
