@@ -1,7 +1,7 @@
 /** `sheaf report`: argv → runReport (src/report/run-report.ts). */
 import type { Argv } from 'yargs';
 import { UsageError } from '../core/errors.js';
-import { runReport } from '../report/run-report.js';
+import { LineOutput } from '../io/line-output.js';
 import type { CommandModule } from './command.js';
 
 export const reportCommand: CommandModule = {
@@ -22,6 +22,8 @@ export const reportCommand: CommandModule = {
   handler: async (args) => {
     const out = args.out as string;
     if (out === '-' && args.json) throw new UsageError('`--json` and `-o -` both write to stdout; pick one');
+    // Loaded here, not at the top: vega and vega-lite take ~0.3 s to import, which no other command should pay.
+    const { runReport } = await import('../report/run-report.js');
     const summary = await runReport({
       shards: args.shards as string[],
       model: args.model as string | undefined,
@@ -31,8 +33,12 @@ export const reportCommand: CommandModule = {
       seed: args.seed as number,
       quiet: args.quiet as boolean,
     }, (l) => console.error(l));
-    if (out === '-') process.stdout.write(summary.html!);
-    else if (args.json) console.log(JSON.stringify({ out: summary.out, bytes: summary.bytes, charts: summary.charts, seconds: summary.seconds }));
+    if (out === '-') {
+      // Through LineOutput: a reader that stops early (`| head`) ends the output quietly.
+      const lines = new LineOutput();
+      await lines.line(summary.html!.replace(/\n$/, ''));
+      await lines.flush();
+    } else if (args.json) console.log(JSON.stringify({ out: summary.out, bytes: summary.bytes, charts: summary.charts, seconds: summary.seconds }));
     return 0;
   },
 };
