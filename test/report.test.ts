@@ -259,6 +259,21 @@ describe('report charts and page', () => {
     expect(d.candidates.toLocaleString('en-US')).toMatch(/,/);
   });
 
+  it('draws what 1-best lists allow and says what it cannot draw', async () => {
+    // One candidate per list: nothing varies within a list, so no bucket is counted and the depth curve is one point.
+    writeFileSync(at('one.jsonl'), LISTS.map((l) => JSON.stringify({ id: l.id, candidates: l.trees.slice(0, 1).map((tree) => ({ tree, score: -1 })) })).join('\n') + '\n');
+    await runPrepare({ gold: at('hand.trees'), nbest: [at('one.jsonl')], pipeline: 'default', out: at('one-best'), workers: 0, quiet: true });
+    const d = (await reportData({ shards: [at('one-best')] })).shards[0];
+    expect(d.oracleAtDepth).toHaveLength(1);
+    expect(d.oracleAtDepth[0].f1).toBe(d.base.f1);
+    expect(d.base.f1).toBe(d.oracle.f1);
+    expect(d.hashing.varyingAtLeast[0].buckets).toBe(0);
+    const s = await runReport({ shards: [at('one-best')], out: '-', quiet: true });
+    expect(s.charts.map((c) => c.id)).toEqual(['oracle-depth', 'length', 'list-sizes', 'positions', 'templates']);
+    expect(s.html).toContain('No bucket varies within any list');
+    expect(s.html).toContain('Needs a model');
+  });
+
   it('writes atomically, refuses a directory as -o, and names directories by base name unless those clash', async () => {
     const out = at('atomic/r.html');
     const s = await runReport({ shards: [at('dev-shards')], out, quiet: true });
@@ -278,6 +293,7 @@ describe('report charts and page', () => {
     expect(errors.join('\n')).toMatch(/is a directory/);
     expect(errors.join('\n')).toMatch(/no-such-dir.*is not a complete shard directory/);
     expect(existsSync(at('x.html'))).toBe(false);
+    await expect(reportData({ shards: [at('dev-shards'), `${at('dev-shards')}/`] })).rejects.toThrow(/is given twice/);
     expect(shortLabels(['a/train-shards', 'b/dev-shards/'])).toEqual(['train-shards', 'dev-shards']);
     expect(shortLabels(['a/shards', 'b/shards'])).toEqual(['a/shards', 'b/shards']);
   });

@@ -78,7 +78,7 @@ export function depthChart(dirs: ShardDirFigures[]): Chart | null {
   const baseLabel = base.reduce<typeof base>((low, b) => (low.length === 0 || b.f1 < low[0].f1 ? [b] : low), []);
   const reranked = dirs.filter((d) => d.reranked).map((d) => ({ shards: d.label, f1: d.reranked!.f1, note: `re-ranked ${d.reranked!.f1.toFixed(2)}` }));
   const longest = Math.max(1, ...dirs.map((d) => d.oracleAtDepth.length));
-  const x = { field: 'depth', type: 'quantitative', title: 'list depth: candidates considered (best base ranks first)', scale: { domain: [1, longest], nice: false }, axis: { values: depthTicks(longest), format: ',d' } };
+  const x = { field: 'depth', type: 'quantitative', title: 'list depth: candidates considered (best base ranks first)', scale: { domain: [1, Math.max(2, longest)], nice: false }, axis: { values: depthTicks(Math.max(2, longest)), format: ',d' } };
   const y = { field: 'f1', type: 'quantitative', title: 'F1', scale: { zero: false }, axis: { format: '.1f' } };
   const layer: Record<string, unknown>[] = [
     { data: { values: curve }, mark: { type: 'line', point: longest <= 60 ? { size: 16 } : false, strokeWidth: 2 }, encoding: { x, y, color: dirColor(dirs) } },
@@ -126,7 +126,7 @@ export function learningChart(model: ModelFigures): Chart | null {
   const values = model.epochs.filter((e) => e.devF1 !== null).map((e) => ({ epoch: e.epoch, f1: e.devF1 }));
   if (values.length === 0) return null;
   const kept = values.filter((v) => v.epoch === model.bestEpoch).map((v) => ({ ...v, note: `kept: epoch ${v.epoch}` }));
-  const x = { field: 'epoch', type: 'quantitative', title: model.method === 'perceptron' ? 'epoch' : 'L-BFGS iteration', axis: { tickMinStep: 1, format: 'd' }, scale: { domain: [1, Math.max(2, values.length)], nice: false } };
+  const x = { field: 'epoch', type: 'quantitative', title: model.method === 'perceptron' ? 'epoch' : 'L-BFGS iteration', axis: { tickMinStep: 1, format: 'd' }, scale: { domain: [1, Math.max(2, ...values.map((v) => v.epoch))], nice: false } };
   const y = { field: 'f1', type: 'quantitative', title: 'dev F1 (re-ranked)', scale: { zero: false }, axis: { format: '.2f' } };
   const layer = [
     { data: { values: kept }, mark: { type: 'rule', color: '#999999', strokeDash: [3, 3] }, encoding: { x } },

@@ -10,7 +10,7 @@
  * a model the rows by length and overall are eval's own (eval/run-eval.ts).
  */
 import { existsSync, readFileSync } from 'node:fs';
-import { basename, join } from 'node:path';
+import { basename, join, resolve } from 'node:path';
 import { baseChoice, F1Table, oracleChoice, sentenceF1, type F1Row } from '../core/f1-table.js';
 import { prf } from '../core/parseval.js';
 import { UsageError } from '../core/errors.js';
@@ -130,6 +130,12 @@ export async function reportData(o: ReportDataOptions): Promise<ReportData> {
   if (o.shards.length === 0) throw new UsageError('expected at least one shard directory (made by `sheaf prepare`)');
   const top = o.top ?? 15;
   if (!Number.isInteger(top) || top < 1 || top > 1000) throw new UsageError(`expected \`--top\` to be an integer from 1 to 1000, got \`${o.top}\``);
+  const seen = new Set<string>();
+  for (const d of o.shards) {
+    const key = resolve(d);
+    if (seen.has(key)) throw new UsageError(`the shard directory \`${d}\` is given twice; give each directory once`);
+    seen.add(key);
+  }
   const model = o.model !== undefined ? loadModel(o.model) : null;
   const labels = shortLabels(o.shards);
   const shards: ShardDirFigures[] = [];
