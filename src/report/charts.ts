@@ -283,7 +283,7 @@ export function weightLabel(r: { bucket: number; names: string[] }): string {
   const name = r.names[0] ?? '(no name kept)';
   const more = r.names.length > 1 ? ` +${r.names.length - 1}` : '';
   const short = name.length > 52 ? `${name.slice(0, 51)}…` : name;
-  return `${short}${more} · #${r.bucket}`;
+  return `${short}${more} · #${r.bucket.toLocaleString('en-US')}`;
 }
 
 /** The highest and lowest weights, with names. */
