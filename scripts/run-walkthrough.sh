@@ -12,5 +12,5 @@ echo "$block" | grep -v '^#' | while IFS= read -r line; do
   echo "\$ $line"
   bash -c "set -euo pipefail; $line" 2>&1 | tail -4
 done
-test -s work/best.trees && test -s work/train.svm && test -f work/model/model.json
+test -s work/best.trees && test -s work/train.svm && test -f work/model/model.json && test -s work/report.html
 echo "walkthrough: every command ran"

@@ -15,17 +15,17 @@ import { rerankCommand } from './commands/rerank.js';
 import { splitCommand } from './commands/split.js';
 import { trainCommand } from './commands/train.js';
 import { prepareCommand } from './commands/prepare.js';
+import { reportCommand } from './commands/report.js';
 import type { CommandModule } from './commands/command.js';
 import { TOOL_VERSION } from './version.js';
 
 /** Commands of the design that later work will build; they refuse to run. */
 const PLANNED: [string, string][] = [
   ['merge', 'merge shard directories made as parts (--part I/N) into one'],
-  ['report', 'one self-contained HTML page with charts of shards and a model'],
   ['status', 'state of cluster tasks submitted for an output folder'],
 ];
 
-const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, demoCommand];
+const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, reportCommand, demoCommand];
 
 /**
  * yargs takes a lone `-` as the end of an option's values; DESIGN.md wants
