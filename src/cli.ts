@@ -11,6 +11,7 @@ import { evalCommand } from './commands/eval.js';
 import { exportCommand } from './commands/export.js';
 import { inspectCommand } from './commands/inspect.js';
 import { jackknifeCommand } from './commands/jackknife.js';
+import { mergeCommand } from './commands/merge.js';
 import { rerankCommand } from './commands/rerank.js';
 import { splitCommand } from './commands/split.js';
 import { trainCommand } from './commands/train.js';
@@ -19,12 +20,11 @@ import type { CommandModule } from './commands/command.js';
 
 /** Commands of the design that later work will build; they refuse to run. */
 const PLANNED: [string, string][] = [
-  ['merge', 'merge shard directories made as parts (--part I/N) into one'],
   ['report', 'one self-contained HTML page with charts of shards and a model'],
   ['status', 'state of cluster tasks submitted for an output folder'],
 ];
 
-const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, demoCommand];
+const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, mergeCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, demoCommand];
 
 /**
  * yargs takes a lone `-` as the end of an option's values; DESIGN.md wants

@@ -1,6 +1,7 @@
 /** `sheaf prepare`: argv → runPrepare (src/prepare/run-prepare.ts). */
 import { availableParallelism } from 'node:os';
 import type { Argv } from 'yargs';
+import { parsePartSpec } from '../prepare/part-output.js';
 import { runPrepare } from '../prepare/run-prepare.js';
 import type { CommandModule } from './command.js';
 
@@ -18,7 +19,9 @@ export const prepareCommand: CommandModule = {
       .option('strict', { type: 'boolean', default: false, description: 'stop at the first bad record instead of rejecting it' })
       .option('quiet', { type: 'boolean', default: false, description: 'no progress output' })
       .option('json', { type: 'boolean', default: false, description: 'print a JSON summary on stdout' })
-      .example('$0 prepare --gold huts-train.trees --nbest fold-*.jsonl.gz --pipeline default -o shards/', 'prepare training shards'),
+      .option('part', { type: 'string', description: 'I/N: process only the records at input positions p with p mod N = I (I from 0); join the N parts with `sheaf merge`' })
+      .example('$0 prepare --gold huts-train.trees --nbest fold-*.jsonl.gz --pipeline default -o shards/', 'prepare training shards')
+      .example('$0 prepare --gold huts-train.trees --nbest fold-*.jsonl.gz --pipeline default --part 1/4 -o parts/1', 'the second of four parts (then `sheaf merge parts/* -o shards/`)'),
   handler: async (args) => {
     const summary = await runPrepare({
       gold: args.gold as string,
@@ -29,6 +32,7 @@ export const prepareCommand: CommandModule = {
       workers: args.workers as number,
       strict: args.strict as boolean,
       quiet: args.quiet as boolean,
+      part: args.part === undefined ? undefined : parsePartSpec(String(args.part)),
     });
     if (args.json) console.log(JSON.stringify(summary));
     return 0;

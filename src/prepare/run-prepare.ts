@@ -19,6 +19,7 @@ import type { FoldPlan } from '../formats/fold-plan.js';
 import { emptyState, headerLine, lastState, shardLine, type WriterState } from '../formats/journal.js';
 import { formatManifest, RECORD_LAYOUT, SHARD_FORMAT, type NamesSummary, type ShardManifest, type Totals } from '../formats/manifest.js';
 import { formatNames } from '../formats/names-file.js';
+import { shareSize } from '../formats/part-file.js';
 import { encodePipelineFiles, PIPELINE_FILES } from '../formats/pipeline-files.js';
 import { fileSha256, removeIfExists, writeFileAtomic } from '../io/files.js';
 import { loadFoldPlan } from '../io/fold-plan-file.js';
@@ -36,6 +37,7 @@ import { joinVerdict, type PlannedFold } from '../stages/align-gold.js';
 import { TOOL_VERSION } from '../version.js';
 import type { SentenceWorkerInit } from './sentence-worker.js';
 import { clearPrepareOutput, JOURNAL } from './output-dir.js';
+import { parsePartSpec, PartOutput, samePart, type PartSpec } from './part-output.js';
 
 export interface PrepareOptions {
   gold: string;
@@ -50,6 +52,8 @@ export interface PrepareOptions {
   batch?: number;
   /** Test hook: behave as if killed once this many shards are complete. */
   stopAfterShards?: number;
+  /** Process only the records at input positions p with p mod `of` = `index` (`sheaf merge` joins the parts). */
+  part?: PartSpec;
 }
 
 /** Thrown by the stopAfterShards test hook. */
@@ -105,6 +109,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const workers = o.workers ?? availableParallelism();
   if (!Number.isInteger(workers) || workers < 0 || workers > 256) throw new UsageError(`expected \`--workers\` to be an integer from 0 to 256, got \`${o.workers}\``);
   if (o.nbest.length === 0) throw new UsageError('expected at least one n-best dump after `--nbest`');
+  if (o.part) parsePartSpec(`${o.part.index}/${o.part.of}`);
   const batchSize = o.batch ?? 16;
   // Validate everything before reading any data.
   const pipeline = loadPipeline(o.pipeline);
@@ -116,14 +121,14 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const progress = createProgress({ quiet: o.quiet ?? false, label: 'sheaf prepare', totalBytes: usesStdin ? null : inputs.nbest.reduce((a, i) => a + (i.bytes ?? 0), 0) });
 
   // A complete output with the same inputs and config: nothing to do.
-  const done = usesStdin ? null : upToDate(o, pipeline, planned?.file ?? null);
+  const done = usesStdin || !samePart(o.out, o.part) ? null : upToDate(o, pipeline, planned?.file ?? null);
   if (done) {
     progress.done(`sheaf prepare: ${o.out} is up to date (same inputs and pipeline); nothing to do`);
     return { out: o.out, upToDate: true, resumedShards: 0, shards: done.shards.length, ...done.totals, seconds: (Date.now() - started) / 1000 };
   }
 
   // Resume from the journal when the inputs and config are unchanged.
-  const header = { format: SHARD_FORMAT, pipeline: pipeline.digest, inputs };
+  const header = o.part ? { format: SHARD_FORMAT, pipeline: pipeline.digest, inputs, part: o.part } : { format: SHARD_FORMAT, pipeline: pipeline.digest, inputs };
   // A run that keeps names restarts rather than resumes: names come from the sentences it processes.
   const keepsNames = pipeline.hashing.names > 0;
   let state: WriterState | null = null;
@@ -139,9 +144,11 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const resumedShards = state.shards.length;
 
   const rejects = new RejectsLog(o.out, state.rejectsBytes);
+  const part = o.part ? new PartOutput(o.out, o.part, state) : null;
   const templateIds = pipeline.config.templates.map((t) => t.template);
   const writer = new ShardWriter(o.out, { limits: pipeline.shards, bits: pipeline.hashing.bits, compressed: pipeline.encode.compression === 'gzip', templates: templateIds }, state, (k, st) => {
     st.rejectsBytes = rejects.bytes;
+    part?.shardDone(k);
     appendFileSync(join(o.out, JOURNAL), shardLine(k, st));
   });
 
@@ -161,6 +168,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   let seq = 0;
   const perFile: number[] = [];
   let namesSummary: NamesSummary | null = null;
+  let keys: string[] | null = null;
   try {
     gold = await GoldIndex.build(o.gold, spill, (r) => {
       goldRejected++;
@@ -178,14 +186,17 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     const consume = (item: Item, res: SentenceResult | undefined) => {
       if (item.kind === 'reject') {
         rejects.write(item.reject);
+        part?.rejected(item.seq);
         writer.rejected(item.seq + 1);
       } else if (res && 'bytes' in res) {
+        part?.sentence(res, item.fold, item.source, item.seq);
         writer.sentence(res as EncodedSentence, item.fold, item.source, item.seq + 1);
         if (o.stopAfterShards !== undefined && state!.shards.length >= o.stopAfterShards) throw new SimulatedStop('stopped by the test hook');
       } else if (res) {
         const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, code: res.code, reason: res.reason };
         if (o.strict) strictStop(r);
         rejects.write(r);
+        part?.rejected(item.seq);
         writer.rejected(item.seq + 1);
       }
       progress.update({ sentences: state!.written + state!.rejected, candidates: state!.candidates, bytesDone });
@@ -200,7 +211,8 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
       const tap = tapFor(`nbest:${file}`);
       const before = seq;
       for await (const item of readNbest(file, { maxCandidates: pipeline.maxCandidates, tap: (c) => { tap(c); bytesDone += c.length; } })) {
-        const skip = seq < state.consumed;
+        // A part reads every record (ids and duplicates are judged over the whole input) but processes only its share.
+        const skip = seq < state.consumed || (part !== null && !part.holds(seq));
         if ('reject' in item) {
           if (!skip) await addReject(item.reject);
           seq++;
@@ -231,9 +243,13 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
       perFile.push(seq - before);
     }
     await batches.finish();
-    if (keepsNames) namesSummary = writeNames(o.out, (await pool.collect()).flat() as string[], pipeline.hashing);
+    if (keepsNames) {
+      keys = (await pool.collect()).flat() as string[];
+      namesSummary = writeNames(o.out, keys, pipeline.hashing);
+    }
   } catch (e) {
     rejects.close();
+    part?.close();
     throw e;
   } finally {
     await pool?.close();
@@ -243,7 +259,8 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   writer.close();
   rejects.finish();
 
-  const read = seq;
+  // A part's totals are those of its share; part.json records the whole input's count.
+  const read = part ? shareSize(seq, part.spec) : seq;
   if (state.written + state.rejected !== read) {
     throw new Error(`totals do not reconcile: read ${read}, written ${state.written}, rejected ${state.rejected}`);
   }
@@ -276,6 +293,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     rejects: { file: REJECTS, count: state.rejected + goldRejected },
     names: namesSummary,
   };
+  part?.finish(seq, state, keys);
   writeFileAtomic(join(o.out, PIPELINE_FILES), encodePipelineFiles(pipeline.files));
   writeFileAtomic(join(o.out, MANIFEST), formatManifest(manifest));
   removeIfExists(join(o.out, JOURNAL));
