@@ -14,6 +14,8 @@ import { jackknifeCommand } from './commands/jackknife.js';
 import { mergeCommand } from './commands/merge.js';
 import { rerankCommand } from './commands/rerank.js';
 import { splitCommand } from './commands/split.js';
+import { statusCommand } from './commands/status.js';
+import { taskCommand } from './commands/task.js';
 import { trainCommand } from './commands/train.js';
 import { prepareCommand } from './commands/prepare.js';
 import type { CommandModule } from './commands/command.js';
@@ -21,10 +23,9 @@ import type { CommandModule } from './commands/command.js';
 /** Commands of the design that later work will build; they refuse to run. */
 const PLANNED: [string, string][] = [
   ['report', 'one self-contained HTML page with charts of shards and a model'],
-  ['status', 'state of cluster tasks submitted for an output folder'],
 ];
 
-const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, mergeCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, demoCommand];
+const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, mergeCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, statusCommand, demoCommand, taskCommand];
 
 /**
  * yargs takes a lone `-` as the end of an option's values; DESIGN.md wants
@@ -70,7 +71,8 @@ export async function main(rawArgv: string[]): Promise<number> {
     });
 
   for (const cmd of BUILT) {
-    cli = cli.command(cmd.name, cmd.describe, cmd.builder, async (args) => {
+    // A describe of false hides the command from --help (yargs takes it; its types only say string).
+    cli = cli.command(cmd.name, cmd.describe as string, cmd.builder, async (args) => {
       const restored = Object.fromEntries(Object.entries(args).map(([k, v]) => [k, restoreDash(v)]));
       exitCode = await cmd.handler(restored);
     });

@@ -116,6 +116,8 @@ function positions(d: string): number[] {
 describe('prepare --part and merge', () => {
   let oneMachine: string;
   let merged3: string;
+  /** The parts made for N = 1 … 4, reused by the refusals. */
+  const partsOf: Record<number, string[]> = {};
 
   it('parses I/N and refuses anything else', () => {
     expect(parsePartSpec('2/4')).toEqual({ index: 2, of: 4 });
@@ -142,6 +144,7 @@ describe('prepare --part and merge', () => {
     expect(readManifest(oneMachine).shards.length).toBeGreaterThan(3);
     for (const N of [1, 2, 3, 4]) {
       const ps = await parts(N);
+      partsOf[N] = ps;
       const out = fresh(`merged-${N}`);
       // Any order of the folders on the command line.
       const summary = await runMerge({ parts: [...ps].reverse(), out, quiet: true });
@@ -203,7 +206,7 @@ describe('prepare --part and merge', () => {
 
   it('runs from the command line: prepare --part I/N, then merge', async () => {
     const ps = [fresh('cli-part'), fresh('cli-part')];
-    const common = ['--gold', gold, '--nbest', ...dumps, '--plan', data.plan, '--pipeline', pipeline, '--workers', '1', '--quiet'];
+    const common = ['--gold', gold, '--nbest', ...dumps, '--plan', data.plan, '--pipeline', pipeline, '--workers', '0', '--quiet'];
     for (const [I, p] of ps.entries()) expect(await main(['prepare', ...common, '--part', `${I}/2`, '-o', p])).toBe(0);
     const out = fresh('cli-merged');
     const printed: string[] = [];
@@ -219,7 +222,7 @@ describe('prepare --part and merge', () => {
   });
 
   it('refuses a missing part, naming it', async () => {
-    const ps = await parts(4);
+    const ps = partsOf[4];
     const out = fresh('refused');
     await expect(runMerge({ parts: [ps[0], ps[1], ps[3]], out, quiet: true })).rejects.toThrow(/missing part 2 of 4/);
     expect(existsSync(join(out, 'manifest.json'))).toBe(false);
@@ -236,7 +239,7 @@ describe('prepare --part and merge', () => {
   });
 
   it('refuses a duplicated part, naming both folders, also when it is a copy', async () => {
-    const ps = await parts(2);
+    const ps = partsOf[2];
     const copy = fresh('copy');
     cpSync(ps[1], copy, { recursive: true });
     const out = fresh('refused');
@@ -245,7 +248,7 @@ describe('prepare --part and merge', () => {
   });
 
   it('refuses foreign parts (another pipeline, other inputs), naming them and what differs', async () => {
-    const ps = await parts(3);
+    const ps = partsOf[3];
     const other = fresh('foreign-pipeline');
     await prepare({ out: other, pipeline: bitsPipeline, part: { index: 2, of: 3 } });
     const out = fresh('refused');
@@ -255,8 +258,7 @@ describe('prepare --part and merge', () => {
     await prepare({ out: inputs, nbest: dumps.slice(0, 2), part: { index: 1, of: 3 } });
     await expect(runMerge({ parts: [ps[0], inputs, ps[2]], out, quiet: true })).rejects.toThrow(new RegExp(`\`${inputs}\` \\(part 1 of 3\\): n-best dumps`));
     // A part of a run cut into another number of parts.
-    const four = fresh('foreign-count');
-    await prepare({ out: four, part: { index: 2, of: 4 } });
+    const four = partsOf[4][2];
     await expect(runMerge({ parts: [ps[0], ps[1], four], out, quiet: true })).rejects.toThrow(/number of parts 4 \(the others: 3\)/);
     // A one-machine shard directory is not a part.
     await expect(runMerge({ parts: [ps[0], ps[1], oneMachine], out, quiet: true })).rejects.toThrow(/made without `--part`/);
@@ -265,7 +267,7 @@ describe('prepare --part and merge', () => {
   it('refuses an interrupted part, naming it; once resumed, the merge is byte-identical', async () => {
     const p0 = fresh('interrupted');
     await expect(prepare({ out: p0, part: { index: 0, of: 2 }, stopAfterShards: 1, workers: 2 })).rejects.toBeInstanceOf(SimulatedStop);
-    const [, p1] = await parts(2);
+    const p1 = partsOf[2][1];
     const out = fresh('refused');
     await expect(runMerge({ parts: [p0, p1], out, quiet: true })).rejects.toThrow(new RegExp(`\`${p0}\` is an incomplete part \\(part 0 of 2 by its journal, 1 shard\\(s\\) complete\\)`));
     const again = await prepare({ out: p0, part: { index: 0, of: 2 } });
@@ -275,7 +277,8 @@ describe('prepare --part and merge', () => {
   });
 
   it('refuses a part whose files were changed after it was written', async () => {
-    const ps = await parts(2);
+    const ps = [partsOf[2][0], fresh('changed')];
+    cpSync(partsOf[2][1], ps[1], { recursive: true });
     const f = join(ps[1], 'shard-00000.msgpack.gz');
     const bytes = readFileSync(f);
     bytes[bytes.length - 5] ^= 0xff;
