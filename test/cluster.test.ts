@@ -160,6 +160,27 @@ describe('reading Slurm\'s queue', () => {
     expect([...q]).toEqual([['41_0', { state: 'RUNNING', reason: 'None', exitCode: null }], ['41_1', { state: 'PENDING', reason: 'Resources', exitCode: null }], ['42', { state: 'PENDING', reason: 'Dependency', exitCode: null }]]);
   });
 
+  // Captured from Slurm 22.05.8 (Debian slurm-wlm) on the single-node set-up of scripts/slurm-local.sh:
+  // a held prepare submission (array 5 of 4 parts, merge 6 after it), then the same once its parts failed,
+  // and a finished jackknife array (job 1, 4 tasks).
+  const fixture = (f: string) => readFileSync(join(root, 'test/fixtures/slurm', f), 'utf8');
+  it('reads what Slurm printed for held, failed, cancelled and completed jobs', () => {
+    const held = parseSqueue(fixture('squeue-held.txt'));
+    expect([...held.keys()]).toEqual(['6', '5_0', '5_1', '5_2', '5_3']);
+    expect(held.get('5_2')).toEqual({ state: 'PENDING', reason: 'JobHeldUser', exitCode: null });
+    // An array not yet split into its elements: one record for the range 0-3.
+    const heldJobs = parseScontrol(fixture('scontrol-held.txt'));
+    expect([...heldJobs.keys()]).toEqual(['5_0', '5_1', '5_2', '5_3', '6']);
+    expect(heldJobs.get('6')).toMatchObject({ state: 'PENDING', reason: 'JobHeldUser' });
+    const failed = parseScontrol(fixture('scontrol-failed.txt'));
+    expect([...failed].map(([k, v]) => [k, v.state, v.reason, v.exitCode]).sort()).toEqual([
+      ['5_0', 'FAILED', 'NonZeroExitCode', '1:0'], ['5_1', 'FAILED', 'NonZeroExitCode', '1:0'], ['5_2', 'FAILED', 'NonZeroExitCode', '1:0'], ['5_3', 'FAILED', 'NonZeroExitCode', '1:0'],
+      ['6', 'CANCELLED', 'DependencyNeverSatisfied', '0:0'],
+    ]);
+    const done = parseScontrol(fixture('scontrol-completed.txt'));
+    expect([...done].map(([k, v]) => [k, v.state, v.exitCode]).sort()).toEqual([['1_0', 'COMPLETED', '0:0'], ['1_1', 'COMPLETED', '0:0'], ['1_2', 'COMPLETED', '0:0'], ['1_3', 'COMPLETED', '0:0']]);
+  });
+
   it('expands array task ranges', () => {
     expect(arrayIndices('3')).toEqual([3]);
     expect(arrayIndices('2-4')).toEqual([2, 3, 4]);
@@ -254,6 +275,7 @@ describe('--engine slurm through a stand-in sbatch', () => {
     ]);
     const text = formatStatus(after).join('\n');
     expect(text).toMatch(/41_1 +part 1 of 3 +FAILED \(exit 1:0\) +complete, 2 shard\(s\)/);
+    expect(text).toMatch(/41_2 +part 2 of 3 +RUNNING +complete/);
     expect(text).toMatch(/42 +merge +gone +merged/);
     expect(text).toMatch(/4 of 4 task\(s\) have their outputs/);
   });

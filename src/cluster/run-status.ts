@@ -104,14 +104,17 @@ export async function runStatus(dir: string): Promise<StatusReport> {
 /** The report as lines for people. */
 export function formatStatus(r: StatusReport): string[] {
   const lines = [`sheaf status ${r.dir}: ${r.command}, submitted ${r.submitted}${r.slurm ? '' : ' (squeue cannot be run here: states from the outputs alone)'}`];
-  const width = Math.max(...r.rows.map((x) => x.label.length), 5);
-  lines.push(`${'task'.padEnd(12)} ${'what'.padEnd(width)}  ${'slurm'.padEnd(14)} output`);
-  for (const x of r.rows) {
-    const id = x.index === null ? x.job : `${x.job}_${x.index}`;
-    const state = x.state === 'UNKNOWN' ? (r.slurm ? 'gone' : '?') : x.state;
-    const why = x.reason && x.reason !== 'None' && x.state === 'PENDING' ? ` (${x.reason})` : x.exitCode && x.exitCode !== '0:0' ? ` (exit ${x.exitCode})` : '';
-    lines.push(`${id.padEnd(12)} ${x.label.padEnd(width)}  ${(state + why).padEnd(14)} ${x.output}`);
-  }
+  // Slurm's word, with the exit status of a task that ended badly, or the reason it waits or was ended.
+  const slurmWord = (x: TaskRow) => {
+    if (x.state === 'UNKNOWN') return r.slurm ? 'gone' : '?';
+    if (x.exitCode && x.exitCode !== '0:0' && x.state !== 'PENDING' && x.state !== 'RUNNING') return `${x.state} (exit ${x.exitCode})`;
+    return x.reason && x.reason !== 'None' ? `${x.state} (${x.reason})` : x.state;
+  };
+  const ids = r.rows.map((x) => (x.index === null ? x.job : `${x.job}_${x.index}`));
+  const words = r.rows.map(slurmWord);
+  const w = [Math.max(4, ...ids.map((x) => x.length)), Math.max(4, ...r.rows.map((x) => x.label.length)), Math.max(5, ...words.map((x) => x.length))];
+  lines.push(`${'task'.padEnd(w[0])}  ${'what'.padEnd(w[1])}  ${'slurm'.padEnd(w[2])}  output`);
+  r.rows.forEach((x, k) => lines.push(`${ids[k].padEnd(w[0])}  ${x.label.padEnd(w[1])}  ${words[k].padEnd(w[2])}  ${x.output}`));
   const done = r.rows.filter((x) => x.done).length;
   lines.push(`${done} of ${r.rows.length} task(s) have their outputs`);
   return lines;
