@@ -15,7 +15,7 @@ import { fileURLToPath } from 'node:url';
 import { gunzipSync } from 'node:zlib';
 import { decodeMulti } from '@msgpack/msgpack';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parsePartSpec, shareSize } from '../src/formats/part-file.js';
+import { decodeDeltas, encodeDeltas, parsePartSpec, shareSize } from '../src/formats/part-file.js';
 import { readManifest } from '../src/io/read-shards.js';
 import { runMerge } from '../src/merge/run-merge.js';
 import { runPrepare, SimulatedStop, type PrepareOptions } from '../src/prepare/run-prepare.js';
@@ -131,6 +131,24 @@ describe('prepare --part and merge', () => {
         }
       }
     }
+  });
+
+  it('stores the varying buckets as LEB128 varints of their differences, and reads them back', () => {
+    // The Protocol Buffers encoding guide's worked example: 300 is the two bytes ac 02.
+    expect(Array.from(encodeDeltas(Uint32Array.of(300)))).toEqual([0xac, 0x02]);
+    expect(Array.from(encodeDeltas(Uint32Array.of(1, 301, 302)))).toEqual([0x01, 0xac, 0x02, 0x01]);
+    let seed = 5;
+    const rand = () => ((seed = (seed * 1103515245 + 12345) % 2 ** 31) / 2 ** 31);
+    for (let t = 0; t < 50; t++) {
+      const set = new Set<number>([0, 2 ** 32 - 1]);
+      const n = Math.floor(rand() * 3000);
+      for (let k = 0; k < n; k++) set.add(Math.floor(rand() * (t % 2 ? 2 ** 20 : 2 ** 32)));
+      const buckets = Uint32Array.from([...set].sort((a, b) => a - b));
+      expect(Array.from(decodeDeltas(encodeDeltas(buckets))!)).toEqual(Array.from(buckets));
+    }
+    expect(decodeDeltas(Uint8Array.of(5, 0))).toBeNull(); // a bucket twice
+    expect(decodeDeltas(Uint8Array.of(0x80))).toBeNull(); // cut short
+    expect(decodeDeltas(Uint8Array.of(0xff, 0xff, 0xff, 0xff, 0x7f))).toBeNull(); // beyond 32 bits
   });
 
   it('merges N = 1, 2, 3, 4 parts into files byte-identical to one machine\'s, rejects included', async () => {

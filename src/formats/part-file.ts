@@ -17,7 +17,9 @@
  *   manifest need: one MessagePack array
  *
  *     [pos, rawBytes, candidates, fold | nil, parser | nil, fingerprint | nil,
- *      varying: bin <u4 (the buckets that vary in the sentence),
+ *      varying: bin (the buckets that vary in the sentence, ascending, as
+ *               LEB128 varints of their differences: the first bucket, then
+ *               each one minus the one before — about half the bytes of <u4),
  *      templateCounts: bin <u4 (per template: buckets fired, of which vary)]
  *
  * - `rejects.positions`: the input position of each record reject, in the
@@ -132,6 +134,46 @@ export interface SideRecord {
   templateCounts: Uint32Array;
 }
 
+/** Ascending buckets as LEB128 varints of their differences (the first one as is). */
+export function encodeDeltas(buckets: Uint32Array): Uint8Array {
+  const out = new Uint8Array(buckets.length * 5);
+  let o = 0;
+  let prev = 0;
+  for (let k = 0; k < buckets.length; k++) {
+    let d = buckets[k] - prev;
+    prev = buckets[k];
+    while (d >= 0x80) {
+      out[o++] = (d & 0x7f) | 0x80;
+      d >>>= 7;
+    }
+    out[o++] = d;
+  }
+  return out.subarray(0, o);
+}
+
+/** The buckets back from encodeDeltas; null when the bytes are not strictly ascending varints of 32-bit buckets. */
+export function decodeDeltas(bytes: Uint8Array): Uint32Array | null {
+  const out = new Uint32Array(bytes.length);
+  let n = 0;
+  let prev = 0;
+  for (let i = 0; i < bytes.length; ) {
+    let d = 0;
+    let shift = 0;
+    for (;;) {
+      if (i >= bytes.length || shift > 28) return null;
+      const b = bytes[i++];
+      d += (b & 0x7f) * 2 ** shift;
+      shift += 7;
+      if (b < 0x80) break;
+    }
+    const v = prev + d;
+    if ((n > 0 && d === 0) || v > 0xffffffff) return null;
+    out[n++] = v;
+    prev = v;
+  }
+  return out.slice(0, n);
+}
+
 /** Appends one side record to `w`. */
 export function encodeSideRecord(w: MsgpackWriter, r: SideRecord): void {
   w.arrayHeader(8);
@@ -147,7 +189,7 @@ export function encodeSideRecord(w: MsgpackWriter, r: SideRecord): void {
     w.str(r.source.parser);
     w.str(r.source.fingerprint);
   }
-  w.bin(r.varying);
+  w.bin(encodeDeltas(r.varying));
   w.bin(r.templateCounts);
 }
 
@@ -166,13 +208,14 @@ export function toSideRecord(raw: Decoded, file: string): SideRecord {
     if (!(b instanceof Uint8Array) || b.byteLength % 4 !== 0) return bad(`\`${what}\` is not uint32 data`);
     return new Uint32Array(new Uint8Array(b).buffer);
   };
+  const deltas = (b: Decoded): Uint32Array => (b instanceof Uint8Array ? decodeDeltas(b) : null) ?? bad('`varying` is not ascending buckets as varint differences');
   return {
     pos,
     rawBytes,
     candidates,
     fold: fold as number | null,
     source: parser === null ? null : { parser: parser as string, fingerprint: fingerprint as string },
-    varying: u32(varying, 'varying'),
+    varying: deltas(varying),
     templateCounts: u32(templateCounts, 'templateCounts'),
   };
 }
