@@ -301,9 +301,11 @@ describe('--engine slurm through a stand-in sbatch', () => {
     // The submission recorded the folds' models in the plan already.
     expect(readFileSync(join(planB, 'folds.json'), 'utf8')).toBe(readFileSync(join(planA, 'folds.json'), 'utf8'));
     const [job] = recorded(slurm.state);
-    // All five tasks at once, as an array runs on a cluster: they share jackknife.json.
-    const runs = await Promise.all([0, 1, 2, 3, 4].map((k) => runScript(job, k)));
-    for (const t of runs) expect(t.status, t.stderr).toBe(0);
+    // Two tasks at a time, as this machine's two CPUs would run the array: they share jackknife.json.
+    for (const pair of [[0, 1], [2, 3], [4]]) {
+      const runs = await Promise.all(pair.map((k) => runScript(job, k)));
+      for (const t of runs) expect(t.status, t.stderr).toBe(0);
+    }
     expectSameFiles(out, local.out);
     // Up to date now: nothing to submit.
     const again = await cli(['jackknife', '--plan', planB, '--nbest', '4', '--parse', dev, '-o', out, '--engine', 'slurm'], slurm.env);

@@ -223,9 +223,10 @@ describe('prepare --part and merge', () => {
   });
 
   it('runs from the command line: prepare --part I/N, then merge', async () => {
-    const ps = [fresh('cli-part'), fresh('cli-part')];
+    const cliPart = fresh('cli-part');
     const common = ['--gold', gold, '--nbest', ...dumps, '--plan', data.plan, '--pipeline', pipeline, '--workers', '0', '--quiet'];
-    for (const [I, p] of ps.entries()) expect(await main(['prepare', ...common, '--part', `${I}/2`, '-o', p])).toBe(0);
+    expect(await main(['prepare', ...common, '--part', '1/2', '-o', cliPart])).toBe(0);
+    const ps = [partsOf[2][0], cliPart];
     const out = fresh('cli-merged');
     const printed: string[] = [];
     const log = console.log;
