@@ -134,7 +134,7 @@ describe('prepare --part and merge', () => {
   });
 
   it('stores the varying buckets as LEB128 varints of their differences, and reads them back', () => {
-    // The Protocol Buffers encoding guide's worked example: 300 is the two bytes ac 02.
+    // The Protocol Buffers encoding guide's worked example (from memory): 300 is the two bytes ac 02.
     expect(Array.from(encodeDeltas(Uint32Array.of(300)))).toEqual([0xac, 0x02]);
     expect(Array.from(encodeDeltas(Uint32Array.of(1, 301, 302)))).toEqual([0x01, 0xac, 0x02, 0x01]);
     let seed = 5;
