@@ -11,21 +11,18 @@ import { evalCommand } from './commands/eval.js';
 import { exportCommand } from './commands/export.js';
 import { inspectCommand } from './commands/inspect.js';
 import { jackknifeCommand } from './commands/jackknife.js';
+import { mergeCommand } from './commands/merge.js';
 import { rerankCommand } from './commands/rerank.js';
 import { splitCommand } from './commands/split.js';
+import { statusCommand } from './commands/status.js';
+import { taskCommand } from './commands/task.js';
 import { trainCommand } from './commands/train.js';
 import { prepareCommand } from './commands/prepare.js';
 import { reportCommand } from './commands/report.js';
 import type { CommandModule } from './commands/command.js';
 import { TOOL_VERSION } from './version.js';
 
-/** Commands of the design that later work will build; they refuse to run. */
-const PLANNED: [string, string][] = [
-  ['merge', 'merge shard directories made as parts (--part I/N) into one'],
-  ['status', 'state of cluster tasks submitted for an output folder'],
-];
-
-const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, reportCommand, demoCommand];
+const BUILT: CommandModule[] = [splitCommand, jackknifeCommand, prepareCommand, mergeCommand, trainCommand, evalCommand, rerankCommand, inspectCommand, exportCommand, reportCommand, statusCommand, demoCommand, taskCommand];
 
 /**
  * yargs takes a lone `-` as the end of an option's values; DESIGN.md wants
@@ -68,7 +65,8 @@ const commandWord = (name: string) => name.split(' ')[0];
 const kebab = (s: string) => s.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`);
 
 function commandList(): string {
-  const rows: [string, string][] = [...BUILT.map((c): [string, string] => [commandWord(c.name), c.describe]), ...PLANNED.map(([n, d]): [string, string] => [n, `${d} (not available yet)`])];
+  // Hidden commands (describe false: what cluster tasks run) are not listed.
+  const rows = BUILT.filter((c) => typeof c.describe === 'string').map((c): [string, string] => [commandWord(c.name), c.describe as string]);
   const width = Math.max(...rows.map(([n]) => n.length));
   return rows.map(([n, d]) => `  ${n.padEnd(width)}  ${d}`).join('\n');
 }
@@ -137,7 +135,7 @@ export async function main(rawArgv: string[]): Promise<number> {
   };
 
   const first = rawArgv.find((a) => !a.startsWith('-'));
-  const words = [...BUILT.map((c) => commandWord(c.name)), ...PLANNED.map(([n]) => n)];
+  const words = BUILT.map((c) => commandWord(c.name));
   const wantsMeta = rawArgv.some((a) => a === '--help' || a === '-h' || a === '--version');
   if (first === undefined && !wantsMeta) {
     console.error(`sheaf: expected a command. The commands:\n${commandList()}\nRun \`sheaf <command> --help\` for a command's options; \`sheaf demo\` runs the whole job on a small invented corpus.`);
@@ -181,15 +179,11 @@ export async function main(rawArgv: string[]): Promise<number> {
     });
 
   for (const cmd of BUILT) {
-    // --version belongs to sheaf itself, not to each command.
-    cli = cli.command(cmd.name, cmd.describe, (y) => cmd.builder(y).version(false), async (args) => {
+    // --version belongs to sheaf itself, not to each command. A describe of false hides the
+    // command from --help (yargs takes it; its types only say string).
+    cli = cli.command(cmd.name, cmd.describe as string, (y) => cmd.builder(y).version(false), async (args) => {
       const restored = Object.fromEntries(Object.entries(args).map(([k, v]) => [k, restoreDash(v)]));
       exitCode = await cmd.handler(restored);
-    });
-  }
-  for (const [name, describe] of PLANNED) {
-    cli = cli.command(`${name}`, `${describe} (not available yet)`, (y) => y.strict(false).version(false), () => {
-      throw new UsageError(`\`sheaf ${name}\` is not available yet in this version; see the README for what is built`);
     });
   }
   try {

@@ -22,13 +22,13 @@ interface KindInfo {
 const KINDS: Record<OutputKind, KindInfo> = {
   plan: { command: 'sheaf split', marks: /^(folds\.json|heldout-\d+\.jsonl|train-\d+\.jsonl)(\.tmp)?$/ },
   nbest: { command: 'sheaf jackknife', marks: /^(jackknife\.json(\.tmp)?|models|logs)$/ },
-  shards: { command: 'sheaf prepare', marks: /^(manifest\.json|journal\.jsonl|shard-\d{5}\.(counts\.)?msgpack(\.gz)?)(\.tmp)?$/ },
+  shards: { command: 'sheaf prepare', marks: /^(manifest\.json|journal\.jsonl|shard-\d{5}\.(counts\.|part\.)?msgpack(\.gz)?|part\.json|rejects\.positions|part-keys\.jsonl)(\.tmp)?$/ },
   model: { command: 'sheaf train', marks: /^(model\.json|weights\.msgpack)(\.tmp)?$/ },
   demo: { command: 'sheaf demo', marks: /^(plan|nbest|train-shards|dev-shards|test-shards|model)$/ },
 };
 
-/** Files every sheaf output may hold, whoever wrote it. */
-const SHARED = /^(rejects\.jsonl|names\.json|pipeline-files\.msgpack)(\.tmp)?$/;
+/** Files every sheaf output may hold, whoever wrote it (slurm/: what `--engine slurm` submitted). */
+const SHARED = /^((rejects\.jsonl|names\.json|pipeline-files\.msgpack)(\.tmp)?|slurm)$/;
 
 export interface Claim {
   /** The folder did not exist or was empty. */
@@ -66,11 +66,12 @@ export function claimOutputFolder(dir: string, kind: OutputKind, o: { force?: bo
   const others = kinds.filter((k) => k !== kind);
   // A demo folder's sub-folders are each claimed by their own command.
   if (kinds.includes(kind) && others.length === 0) return { fresh: false };
+  const foreign = entries.filter((e) => !SHARED.test(e));
+  if (others.length === 0 && foreign.length === 0) return { fresh: false };
   if (others.length > 0) {
     const whose = others.map((k) => `${KINDS[k].command}`).join(' and ');
     throw new UsageError(`\`${dir}\` (given to \`${option}\`) holds the output of ${whose}; ${KINDS[kind].command} would mix its files into it. Choose another folder, or add --force to write there anyway`);
   }
-  const foreign = entries.filter((e) => !SHARED.test(e));
   const shown = (foreign.length > 0 ? foreign : entries).slice(0, 3).map((e) => `\`${e}\``).join(', ');
   throw new UsageError(`\`${dir}\` (given to \`${option}\`) is not empty and holds no output of ${KINDS[kind].command} (it has ${entries.length.toLocaleString('en-US')} entr${entries.length === 1 ? 'y' : 'ies'}, such as ${shown}). Choose a new or empty folder, or add --force to write there anyway`);
 }

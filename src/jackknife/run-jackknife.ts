@@ -23,6 +23,7 @@ import { emptyJackknifeState, formatJackknifeState, parseJackknifeState, staleRe
 import { fileSha256, writeFileAtomic } from '../io/files.js';
 import { claimOutputFolder } from '../io/output-folder.js';
 import { loadFoldPlan, saveFoldPlan } from '../io/fold-plan-file.js';
+import { withFileLock } from '../io/file-lock.js';
 import { GzipLines } from '../io/gzip-lines.js';
 import { checkPcfgSettings, encodeGrammar, PcfgTrainer, settingsKey, type PcfgSettings } from '../parser/index.js';
 import type { ParseResult } from '../parser/index.js';
@@ -46,6 +47,17 @@ export interface JackknifeOptions {
   quiet?: boolean;
   /** Write into a folder that holds other files. */
   force?: boolean;
+  /**
+   * Only decide: record the folds' models in the plan and list the stale
+   * outputs (summary.stale) without making any (what a cluster submission does first).
+   */
+  decideOnly?: boolean;
+  /**
+   * Make only these outputs (a cluster task): the plan is left alone (the
+   * submission recorded it) and jackknife.json is updated under a lock, as
+   * other tasks write it too.
+   */
+  only?: string[];
 }
 
 export interface JackknifeSummary {
@@ -55,6 +67,9 @@ export interface JackknifeSummary {
   remade: number;
   upToDate: number;
   seconds: number;
+  /** With `decideOnly`: the outputs that must be (re)made, and what each will be made from (as jackknife.json will record it). */
+  stale?: string[];
+  planned?: Record<string, Omit<OutputRecord, 'sentences' | 'sha256' | 'why'>>;
 }
 
 export const STATE_FILE = 'jackknife.json';
@@ -107,8 +122,12 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
   const foldDigest = await Promise.all(heldout.map(treebankDigest));
   const targets: Target[] = plan.folds.map((f, k) => ({ file: `fold-${f.fold}.jsonl.gz`, fold: f.fold, train: heldout.filter((_, j) => j !== k), input: heldout[k] }));
   for (const f of parseFiles) targets.push({ file: dumpName(f), fold: null, train: heldout, input: f });
+  for (const f of o.only ?? []) {
+    if (!targets.some((t) => t.file === f)) throw new UsageError(`this task makes \`${f}\`, which the plan \`${o.plan}\` and the \`--parse\` files no longer give; submit the jackknife again`);
+  }
+  const chosen = o.only ? targets.filter((t) => o.only!.includes(t.file)) : targets;
 
-  const summary: JackknifeSummary = { out: o.out, parser: external ? external.name : EMBEDDED, outputs: [], remade: 0, upToDate: 0, seconds: 0 };
+  const summary: JackknifeSummary = { out: o.out, parser: external ? external.name : EMBEDDED, outputs: [], remade: 0, upToDate: 0, seconds: 0, ...(o.decideOnly ? { stale: [], planned: {} } : {}) };
   const failures: string[] = [];
   const limit = pLimit(Math.max(1, external ? workers || 1 : 1));
   const n = (x: number) => x.toLocaleString('en-US');
@@ -131,6 +150,12 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
       summary.outputs.push({ file: t.file, fold: t.fold, sentences: had.sentences, remade: false, why: had.why });
       return;
     }
+    if (o.decideOnly) {
+      summary.stale!.push(t.file);
+      summary.planned![t.file] = { fold: t.fold, model, input, nbest };
+      summary.outputs.push({ file: t.file, fold: t.fold, sentences: had?.sentences ?? 0, remade: false, why });
+      return;
+    }
     const t0 = Date.now();
     const lists = external
       ? await externalTarget(external, t, model, nbest, o.out, what)
@@ -149,13 +174,20 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
     const sha256 = out.finish();
     const record: OutputRecord = { fold: t.fold, model, input, nbest, sentences, sha256, why };
     state.outputs[t.file] = record;
-    writeFileAtomic(stateFile, formatJackknifeState(state));
+    if (o.only) {
+      // Other tasks write the state too: re-read it under a lock and change only this output's entry.
+      await withFileLock(`${stateFile}.lock`, () => {
+        const now = existsSync(stateFile) ? parseJackknifeState(readFileSync(stateFile, 'utf8')) : emptyJackknifeState();
+        now.outputs[t.file] = record;
+        writeFileAtomic(stateFile, formatJackknifeState(now));
+      });
+    } else writeFileAtomic(stateFile, formatJackknifeState(state));
     summary.remade++;
     summary.outputs.push({ file: t.file, fold: t.fold, sentences, remade: true, why });
     if (!o.quiet) log(`sheaf jackknife: ${what}: ${n(sentences)} sentences at ${nbest}-best in ${((Date.now() - t0) / 1000).toFixed(1)} s (${why})`);
   };
 
-  await Promise.all(targets.map((t) => limit(async () => {
+  await Promise.all(chosen.map((t) => limit(async () => {
     try {
       await runTarget(t);
     } catch (e) {
@@ -174,11 +206,11 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
       changed = true;
     }
   }
-  if (changed) saveFoldPlan(o.plan, plan);
+  if (changed && !o.only) saveFoldPlan(o.plan, plan);
   summary.outputs.sort((a, b) => a.file.localeCompare(b.file));
   summary.seconds = (Date.now() - started) / 1000;
   if (failures.length > 0) throw new UsageError(`${failures.length} output(s) failed (the others are kept):\n${failures.join('\n')}`);
-  if (!o.quiet) {
+  if (!o.quiet && !o.decideOnly) {
     log(summary.remade === 0
       ? `sheaf jackknife: ${o.out} is up to date (${summary.upToDate} outputs); nothing to do`
       : `sheaf jackknife: re-made ${summary.remade} output(s), ${summary.upToDate} up to date, in ${summary.seconds.toFixed(1)} s; reasons in ${stateFile}`);

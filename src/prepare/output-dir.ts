@@ -4,7 +4,7 @@ import { join } from 'node:path';
 
 export const JOURNAL = 'journal.jsonl';
 
-const OWNED = /^(shard-\d{5}\.(counts\.)?msgpack(\.gz)?|manifest\.json|rejects\.jsonl|names\.json|journal\.jsonl|pipeline-files\.msgpack|\.gold-spill)(\.tmp)?$/;
+const OWNED = /^(shard-\d{5}\.(counts\.|part\.)?msgpack(\.gz)?|manifest\.json|rejects\.jsonl|names\.json|journal\.jsonl|pipeline-files\.msgpack|\.gold-spill|part\.json|rejects\.positions|part-keys\.jsonl)(\.tmp)?$/;
 
 /** Removes every file a prepare run writes (a fresh start). */
 export function clearPrepareOutput(dir: string): void {

@@ -19,6 +19,7 @@ import type { FoldPlan } from '../formats/fold-plan.js';
 import { emptyState, headerLine, lastState, shardLine, type WriterState } from '../formats/journal.js';
 import { formatManifest, RECORD_LAYOUT, SHARD_FORMAT, type NamesSummary, type ShardManifest, type Totals } from '../formats/manifest.js';
 import { formatNames } from '../formats/names-file.js';
+import { PART_FILE, shareSize } from '../formats/part-file.js';
 import { encodePipelineFiles, PIPELINE_FILES } from '../formats/pipeline-files.js';
 import { fileSha256, removeIfExists, writeFileAtomic } from '../io/files.js';
 import { loadFoldPlan } from '../io/fold-plan-file.js';
@@ -37,6 +38,7 @@ import { joinVerdict, type PlannedFold } from '../stages/align-gold.js';
 import { TOOL_VERSION } from '../version.js';
 import type { SentenceWorkerInit } from './sentence-worker.js';
 import { clearPrepareOutput, JOURNAL } from './output-dir.js';
+import { parsePartSpec, PartOutput, samePart, type PartSpec } from './part-output.js';
 
 export interface PrepareOptions {
   gold: string;
@@ -55,6 +57,8 @@ export interface PrepareOptions {
   force?: boolean;
   /** Fail (status 1) when more than this share of the records read is rejected (default 0.5). */
   maxRejectRate?: number;
+  /** Process only the records at input positions p with p mod `of` = `index` (`sheaf merge` joins the parts). */
+  part?: PartSpec;
 }
 
 /** Thrown by the stopAfterShards test hook. */
@@ -114,6 +118,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   if (!(maxRejectRate >= 0 && maxRejectRate <= 1)) throw new UsageError(`expected \`--max-reject-rate\` to be a number from 0 to 1, got \`${o.maxRejectRate}\``);
   const fromStdin = [o.gold, ...o.nbest].filter((f) => f === '-').length;
   if (fromStdin > 1) throw new UsageError('expected at most one input on stdin (`-`): the gold treebank and the n-best dumps are read at different times, so only one of them can come from a pipe');
+  if (o.part) parsePartSpec(`${o.part.index}/${o.part.of}`);
   const batchSize = o.batch ?? 16;
   // Validate everything before reading any data.
   const pipeline = loadPipeline(o.pipeline);
@@ -137,7 +142,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   }
 
   // Resume from the journal when the inputs and config are unchanged.
-  const header = { format: SHARD_FORMAT, pipeline: pipeline.digest, inputs };
+  const header = o.part ? { format: SHARD_FORMAT, pipeline: pipeline.digest, inputs, part: o.part } : { format: SHARD_FORMAT, pipeline: pipeline.digest, inputs };
   // A run that keeps names restarts rather than resumes: names come from the sentences it processes.
   const keepsNames = pipeline.hashing.names > 0;
   let state: WriterState | null = null;
@@ -153,9 +158,11 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const resumedShards = state.shards.length;
 
   const rejects = new RejectsLog(o.out, state.rejectsBytes);
+  const part = o.part ? new PartOutput(o.out, o.part, state) : null;
   const templateIds = pipeline.config.templates.map((t) => t.template);
   const writer = new ShardWriter(o.out, { limits: pipeline.shards, bits: pipeline.hashing.bits, compressed: pipeline.encode.compression === 'gzip', templates: templateIds }, state, (k, st) => {
     st.rejectsBytes = rejects.bytes;
+    part?.shardDone(k);
     appendFileSync(join(o.out, JOURNAL), shardLine(k, st));
   });
 
@@ -175,6 +182,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   let seq = 0;
   const perFile: number[] = [];
   let namesSummary: NamesSummary | null = null;
+  let keys: string[] | null = null;
   try {
     gold = await GoldIndex.build(o.gold, spill, (r) => {
       goldRejected++;
@@ -194,14 +202,17 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     const consume = (item: Item, res: SentenceResult | undefined) => {
       if (item.kind === 'reject') {
         rejects.write(item.reject);
+        part?.rejected(item.seq);
         writer.rejected(item.seq + 1);
       } else if (res && 'bytes' in res) {
+        part?.sentence(res, item.fold, item.source, item.seq);
         writer.sentence(res as EncodedSentence, item.fold, item.source, item.seq + 1);
         if (o.stopAfterShards !== undefined && state!.shards.length >= o.stopAfterShards) throw new SimulatedStop('stopped by the test hook');
       } else if (res) {
         const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, code: res.code, reason: res.reason };
         if (o.strict) strictStop(r);
         rejects.write(r);
+        part?.rejected(item.seq);
         writer.rejected(item.seq + 1);
       }
       bytesDone = item.bytesAt;
@@ -217,7 +228,8 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
       const tap = tapFor(`nbest:${file}`);
       const before = seq;
       for await (const item of readNbest(file, { maxCandidates: pipeline.maxCandidates, tap: (c) => { tap(c); bytesRead += c.length; } })) {
-        const skip = seq < state.consumed;
+        // A part reads every record (ids and duplicates are judged over the whole input) but processes only its share.
+        const skip = seq < state.consumed || (part !== null && !part.holds(seq));
         if ('reject' in item) {
           if (!skip) await addReject(item.reject);
           seq++;
@@ -248,9 +260,13 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
       perFile.push(seq - before);
     }
     await batches.finish();
-    if (keepsNames) namesSummary = writeNames(o.out, (await pool.collect()).flat() as string[], pipeline.hashing);
+    if (keepsNames) {
+      keys = (await pool.collect()).flat() as string[];
+      namesSummary = writeNames(o.out, keys, pipeline.hashing);
+    }
   } catch (e) {
     rejects.close();
+    part?.close();
     throw e;
   } finally {
     await pool?.close();
@@ -260,7 +276,8 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   writer.close();
   rejects.finish();
 
-  const read = seq;
+  // A part's totals are those of its share; part.json records the whole input's count.
+  const read = part ? shareSize(seq, part.spec) : seq;
   if (state.written + state.rejected !== read) {
     throw new Error(`totals do not reconcile: read ${read}, written ${state.written}, rejected ${state.rejected}`);
   }
@@ -293,6 +310,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     rejects: { file: REJECTS, count: state.rejected + goldRejected },
     names: namesSummary,
   };
+  part?.finish(seq, state, keys);
   writeFileAtomic(join(o.out, PIPELINE_FILES), encodePipelineFiles(pipeline.files));
   writeFileAtomic(join(o.out, MANIFEST), formatManifest(manifest));
   removeIfExists(join(o.out, JOURNAL));
@@ -344,6 +362,7 @@ function checkRejectRate(t: Totals, max: number, out: string): void {
  */
 function earlierOutput(o: PrepareOptions, pipeline: LoadedPipeline, inputs: { gold: InputInfo; nbest: InputInfo[]; plan: InputInfo | null }, planFile: string | null): { upToDate: ShardManifest | null; differences: string[] } {
   const stdin = [o.gold, ...o.nbest].includes('-');
+  const partOf = (p: PartSpec | null | undefined) => (p ? `part ${p.index}/${p.of}` : 'a whole run');
   if (existsSync(join(o.out, MANIFEST))) {
     let m: ShardManifest;
     try {
@@ -364,12 +383,13 @@ function earlierOutput(o: PrepareOptions, pipeline: LoadedPipeline, inputs: { go
       differences.push(JSON.stringify(then) === JSON.stringify(o.nbest) ? `n-best dumps ${paths(o.nbest)} have changed` : `n-best dumps ${paths(then)} then, ${paths(o.nbest)} now`);
     }
     if ((m.inputs.plan?.sha256 ?? null) !== (planFile ? fileSha256(planFile) : null)) differences.push(m.inputs.plan ? (planFile ? 'another fold plan' : 'a fold plan then, none now') : 'no fold plan then, one now');
+    if (!samePart(o.out, o.part)) differences.push(`${existsSync(join(o.out, PART_FILE)) ? 'another part' : 'a whole run'} then, ${partOf(o.part)} now`);
     const complete = m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes);
     return { upToDate: differences.length === 0 && complete ? m : null, differences };
   }
   if (existsSync(join(o.out, JOURNAL))) {
     // An interrupted run: its journal names its inputs (paths, sizes, times) and pipeline.
-    let header: { pipeline?: string; inputs?: { gold?: InputInfo; nbest?: InputInfo[]; plan?: InputInfo | null } } | undefined;
+    let header: { pipeline?: string; inputs?: { gold?: InputInfo; nbest?: InputInfo[]; plan?: InputInfo | null }; part?: PartSpec } | undefined;
     try {
       header = JSON.parse(readFileSync(join(o.out, JOURNAL), 'utf8').split('\n', 1)[0]).header;
     } catch {
@@ -383,6 +403,7 @@ function earlierOutput(o: PrepareOptions, pipeline: LoadedPipeline, inputs: { go
     if (!same(header.inputs?.gold, inputs.gold)) differences.push(`gold treebank \`${header.inputs?.gold?.path ?? '?'}\` then (or it has changed since)`);
     if (JSON.stringify(header.inputs?.nbest ?? null) !== JSON.stringify(inputs.nbest)) differences.push('other n-best dumps (or they have changed since)');
     if (!same(header.inputs?.plan, inputs.plan)) differences.push('another fold plan');
+    if (JSON.stringify(header.part ?? null) !== JSON.stringify(o.part ?? null)) differences.push(`${partOf(header.part)} then, ${partOf(o.part)} now`);
     return { upToDate: null, differences };
   }
   return { upToDate: null, differences: [] };
