@@ -10,6 +10,7 @@
  * Pure: parsing and checking only; reading the file is the caller's.
  */
 import { UsageError } from '../core/errors.js';
+import { notWellFormed } from '../core/well-formed.js';
 import type { ModelIdentity } from '../records.js';
 
 export const FOLDS_FORMAT = 'sheaf-folds/1';
@@ -33,10 +34,12 @@ export interface FoldPlan {
 
 const has = (o: object, key: string) => Object.prototype.hasOwnProperty.call(o, key);
 
-/** Checks a model identity: `{parser: string, fingerprint: string}`. */
+/** Checks a model identity: `{parser: string, fingerprint: string}`, both non-empty. */
 export function isModelIdentity(v: unknown): v is ModelIdentity {
   return v !== null && typeof v === 'object' && !Array.isArray(v)
     && typeof (v as ModelIdentity).parser === 'string' && typeof (v as ModelIdentity).fingerprint === 'string'
+    // Empty names cannot be told from "no source" (manifests count unnamed sources as empty strings).
+    && (v as ModelIdentity).parser.length > 0 && (v as ModelIdentity).fingerprint.length > 0
     && Object.keys(v as object).every((k) => k === 'parser' || k === 'fingerprint');
 }
 
@@ -68,13 +71,15 @@ export function parseFoldPlan(text: string, file: string): FoldPlan {
     }
     const ids = e.ids.map(String);
     for (const id of ids) {
+      const notText = notWellFormed(id, 'a sentence id');
+      if (notText) throw new UsageError(`${at}: ${notText}`);
       const prior = seenIds.get(id);
       if (prior !== undefined) throw new UsageError(`${at}: sentence \`${id}\` is also in fold ${prior}; a sentence is held out in exactly one fold`);
       seenIds.set(id, fold);
     }
     const model = has(e, 'model') ? e.model : null;
     if (model !== null && !isModelIdentity(model)) {
-      throw new UsageError(`${at}: expected \`model\` to be null or {"parser": string, "fingerprint": string}, got ${JSON.stringify(model)}`);
+      throw new UsageError(`${at}: expected \`model\` to be null or {"parser": string, "fingerprint": string} with both non-empty (\`sheaf jackknife\` fills it in), got ${JSON.stringify(model)}`);
     }
     const digest = has(e, 'digest') ? e.digest : null;
     if (digest !== null && typeof digest !== 'string') throw new UsageError(`${at}: expected \`digest\` to be a string or null`);

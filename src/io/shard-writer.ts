@@ -21,6 +21,8 @@ export interface EncodedSentence {
   bytes: Uint8Array;
   rawBytes: number;
   candidates: number;
+  /** Candidates dropped from this list (words differ from the gold's). */
+  dropped?: readonly unknown[];
   varying: Uint32Array;
   templateCounts: Uint32Array;
 }
@@ -72,6 +74,7 @@ export class ShardWriter {
     const st = this.state;
     st.written++;
     st.candidates += s.candidates;
+    st.candidatesDropped = (st.candidatesDropped ?? 0) + (s.dropped?.length ?? 0);
     if (s.candidates === 0) st.noCandidates++;
     st.consumed = consumed;
     countFold(st, fold, source);

@@ -9,7 +9,7 @@
  * totals are checked to reconcile before the manifest is written.
  */
 import { createHash, type Hash } from 'node:crypto';
-import { appendFileSync, existsSync, mkdirSync, readFileSync, statSync } from 'node:fs';
+import { appendFileSync, existsSync, mkdirSync, readFileSync, realpathSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
@@ -82,6 +82,21 @@ function inputInfo(path: string): InputInfo {
   return { path, bytes: s.size, mtimeMs: s.mtimeMs };
 }
 
+/** The same dump named twice (overlapping globs) would be read twice: refuse it before reading anything. */
+function refuseRepeatedDumps(paths: string[]): void {
+  const seen = new Map<string, string>();
+  for (const p of paths) {
+    const key = p === '-' ? '-' : realpathSync(p);
+    const first = seen.get(key);
+    if (first !== undefined) {
+      throw new UsageError(first === p
+        ? `\`${p}\` is named twice after \`--nbest\` (overlapping globs?); name each dump once`
+        : `\`${first}\` and \`${p}\` after \`--nbest\` are the same file (overlapping globs?); name each dump once`);
+    }
+    seen.set(key, p);
+  }
+}
+
 /** Where the plan puts each gold sentence. */
 function plannedFolds(plan: FoldPlan | null, gold: GoldIndex): Map<number, ModelIdentity | null> {
   const models = new Map<number, ModelIdentity | null>();
@@ -98,7 +113,7 @@ function plannedFolds(plan: FoldPlan | null, gold: GoldIndex): Map<number, Model
 
 type Item =
   | { kind: 'reject'; reject: RejectRecord; seq: number }
-  | { kind: 'job'; seq: number; id: string; file: string; line: number | null; fold: number | null; source: ModelIdentity | null };
+  | { kind: 'job'; seq: number; id: string; file: string; line: number | null; fold: number | null; source: ModelIdentity | null; goldAt: string };
 
 export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const started = Date.now();
@@ -111,6 +126,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const planned = o.plan ? loadFoldPlan(o.plan) : null;
   const plan = planned?.plan ?? null;
   const inputs = { gold: inputInfo(o.gold), nbest: o.nbest.map(inputInfo), plan: planned ? inputInfo(planned.file) : null };
+  refuseRepeatedDumps(o.nbest);
   mkdirSync(o.out, { recursive: true });
   const usesStdin = [o.gold, ...o.nbest].includes('-');
   const progress = createProgress({ quiet: o.quiet ?? false, label: 'sheaf prepare', totalBytes: usesStdin ? null : inputs.nbest.reduce((a, i) => a + (i.bytes ?? 0), 0) });
@@ -180,10 +196,16 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
         rejects.write(item.reject);
         writer.rejected(item.seq + 1);
       } else if (res && 'bytes' in res) {
+        // Candidates dropped from a kept list: one rejects line each (with --strict, the first stops the run).
+        for (const d of res.dropped) {
+          const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, candidate: d.rank, code: d.code, reason: d.reason + item.goldAt };
+          if (o.strict) strictStop(r);
+          rejects.write({ ...r, reason: `${d.reason}; dropped, the list is kept with its other candidates${item.goldAt}` });
+        }
         writer.sentence(res as EncodedSentence, item.fold, item.source, item.seq + 1);
         if (o.stopAfterShards !== undefined && state!.shards.length >= o.stopAfterShards) throw new SimulatedStop('stopped by the test hook');
       } else if (res) {
-        const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, code: res.code, reason: res.reason };
+        const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, code: res.code, reason: res.reason + item.goldAt };
         if (o.strict) strictStop(r);
         rejects.write(r);
         writer.rejected(item.seq + 1);
@@ -197,7 +219,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     };
 
     for (const file of o.nbest) {
-      const tap = tapFor(`nbest:${file}`);
+      const tap = tapFor(`nbest:${perFile.length}`);
       const before = seq;
       for await (const item of readNbest(file, { maxCandidates: pipeline.maxCandidates, tap: (c) => { tap(c); bytesDone += c.length; } })) {
         const skip = seq < state.consumed;
@@ -219,10 +241,11 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
         const plannedFold: PlannedFold | undefined | null = plan ? (fold >= 0 ? { fold, model: models.get(fold) ?? null } : undefined) : null;
         const refusal = joinVerdict(rec.id, k >= 0, firstSight, plannedFold, rec.fold, rec.source);
         if (refusal) {
-          await addReject({ file, line, column: null, id: rec.id, code: refusal.code, reason: refusal.reason + where });
+          const positions = refusal.code === 'no-gold' && gold.byPosition ? ` (the ids of \`${o.gold}\` are tree positions; trees it refused are in the rejects)` : '';
+          await addReject({ file, line, column: null, id: rec.id, code: refusal.code, reason: refusal.reason + positions + where });
         } else {
           await batches.push(
-            { kind: 'job', seq, id: rec.id, file, line, fold: rec.fold, source: rec.source },
+            { kind: 'job', seq, id: rec.id, file, line, fold: rec.fold, source: rec.source, goldAt: gold.origin(k) },
             { pos: seq, id: rec.id, fold: rec.fold, gold: gold.tree(k), candidates: rec.candidates },
           );
         }
@@ -252,7 +275,9 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     read,
     written: state.written,
     rejected: state.rejected,
+    candidatesRead: state.candidates + (state.candidatesDropped ?? 0),
     candidates: state.candidates,
+    candidatesDropped: state.candidatesDropped ?? 0,
     noCandidates: state.noCandidates,
     goldTrees: gold!.size,
     goldRejected,
@@ -267,13 +292,13 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     record: RECORD_LAYOUT,
     inputs: {
       gold: { path: o.gold, bytes: inputs.gold.bytes, sha256: digestOf(`gold:${o.gold}`) },
-      nbest: o.nbest.map((f, k) => ({ path: f, bytes: inputs.nbest[k].bytes, sha256: digestOf(`nbest:${f}`), records: perFile[k] })),
+      nbest: o.nbest.map((f, k) => ({ path: f, bytes: inputs.nbest[k].bytes, sha256: digestOf(`nbest:${k}`), records: perFile[k] })),
       plan: planned ? { path: planned.file, sha256: fileSha256(planned.file) } : null,
     },
     folds: state.folds,
     shards: state.shards,
     totals,
-    rejects: { file: REJECTS, count: state.rejected + goldRejected },
+    rejects: { file: REJECTS, count: state.rejected + goldRejected + totals.candidatesDropped },
     names: namesSummary,
   };
   writeFileAtomic(join(o.out, PIPELINE_FILES), encodePipelineFiles(pipeline.files));
@@ -281,7 +306,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   removeIfExists(join(o.out, JOURNAL));
   const summary: PrepareSummary = { out: o.out, upToDate: false, resumedShards, shards: state.shards.length, ...totals, seconds: (Date.now() - started) / 1000 };
   const n = (x: number) => x.toLocaleString('en-US');
-  progress.done(`sheaf prepare: read ${n(read)} sentences: wrote ${n(state.written)} (${n(state.candidates)} candidates) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
+  progress.done(`sheaf prepare: read ${n(read)} sentences: wrote ${n(state.written)} (${n(state.candidates)} candidates${totals.candidatesDropped ? `; ${n(totals.candidatesDropped)} dropped: words differ from the gold's` : ''}) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
   return summary;
 }
 
@@ -292,13 +317,13 @@ function upToDate(o: PrepareOptions, pipeline: LoadedPipeline, planFile: string 
   try {
     m = readManifest(o.out);
   } catch {
-    return null;
+    return null; // damaged: the run makes the output again
   }
   const same = m.pipeline.digest === pipeline.digest
     && m.inputs.gold.sha256 === fileSha256(o.gold)
     && JSON.stringify(m.inputs.nbest.map((x) => x.sha256)) === JSON.stringify(o.nbest.map(fileSha256))
     && (m.inputs.plan?.sha256 ?? null) === (planFile ? fileSha256(planFile) : null)
-    && m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes);
+    && m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes && statSync(join(o.out, s.counts), { throwIfNoEntry: false })?.isFile() === true);
   return same ? m : null;
 }
 
