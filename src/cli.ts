@@ -6,6 +6,7 @@
  */
 import yargs, { type Argv } from 'yargs';
 import { DataError, UsageError } from './core/errors.js';
+import { environmentError } from './io/fs-faults.js';
 import { demoCommand } from './commands/demo.js';
 import { evalCommand } from './commands/eval.js';
 import { exportCommand } from './commands/export.js';
@@ -42,7 +43,9 @@ export async function main(rawArgv: string[]): Promise<number> {
   const argv = rawArgv.map((a) => (a === '-' ? DASH : a));
   let exitCode = 0;
   const debug = argv.includes('--debug');
-  const report = (error: unknown): number => {
+  const report = (raw: unknown): number => {
+    // A fault of the environment (permissions, a full disk, a read-only file system) is no bug of ours: status 1.
+    const error = environmentError(raw, 'the output', 'write');
     if (error instanceof UsageError || error instanceof DataError) {
       console.error(`sheaf: ${error.message}`);
       if (debug && error.stack) console.error(error.stack);

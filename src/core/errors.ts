@@ -83,3 +83,15 @@ export class UsageError extends Error {
     this.name = 'UsageError';
   }
 }
+
+/**
+ * The environment refused a file operation: permission denied, a full disk, a
+ * read-only file system, a file where a folder was expected. Not a bug of
+ * ours and not bad data: status 1, with the path and what to do.
+ */
+export class EnvironmentError extends UsageError {
+  constructor(readonly code: string, readonly path: string, message: string, options?: { cause?: unknown }) {
+    super(message, options);
+    this.name = 'EnvironmentError';
+  }
+}

@@ -6,7 +6,6 @@
  * perceptron (dev picks the epoch), and report base, oracle and re-ranked F1
  * on the test split with a paired bootstrap.
  */
-import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { dir as tmpDir } from 'tmp-promise';
@@ -16,6 +15,7 @@ import { runSplit } from '../folds/run-split.js';
 import { dumpName, runJackknife } from '../jackknife/run-jackknife.js';
 import { runPrepare, type PrepareSummary } from '../prepare/run-prepare.js';
 import { runTrain, type TrainSummary } from '../train/run-train.js';
+import { makeFolder } from '../io/fs-faults.js';
 
 const corpus = (name: string) => fileURLToPath(new URL(`../../demo-corpus/${name}`, import.meta.url));
 export const DEMO_TRAIN = corpus('huts-train.trees');
@@ -48,7 +48,7 @@ export async function runDemo(options: { out?: string; quiet?: boolean; workers?
 }
 
 async function demo(dir: string, options: { out?: string; quiet?: boolean; workers?: number }, print: (line: string) => void, started: number, temporary: boolean): Promise<DemoSummary> {
-  mkdirSync(dir, { recursive: true });
+  makeFolder(dir);
   const quiet = true;
   const step = (s: string) => print(`sheaf demo: ${s}`);
   step('invented hut-log treebanks: 4,000 training, 400 dev, 400 test sentences');

@@ -10,7 +10,7 @@
  * same folder keeps a fold's recorded base model when its digest is unchanged.
  */
 import { createHash } from 'node:crypto';
-import { closeSync, existsSync, mkdirSync, openSync, readFileSync, renameSync, writeSync } from 'node:fs';
+import { closeSync, existsSync, openSync, readFileSync, renameSync, writeSync } from 'node:fs';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
 import { IdTable } from '../core/id-table.js';
@@ -21,6 +21,7 @@ import { readTreeTexts } from '../io/read-treebank.js';
 import { RejectsLog } from '../io/rejects-log.js';
 import type { RejectRecord } from '../records.js';
 import { blockFold, hashFold, type FoldMethod } from './assign-folds.js';
+import { makeFolder } from '../io/fs-faults.js';
 
 export interface SplitOptions {
   gold: string;
@@ -95,7 +96,7 @@ export async function runSplit(o: SplitOptions, log: (line: string) => void = ()
   if (!Number.isInteger(seed) || seed < 0 || seed > 4294967295) throw new UsageError(`expected \`--seed\` to be an integer from 0 to 4294967295, got \`${o.seed}\``);
   if (method !== 'hash' && method !== 'blocks') throw new UsageError(`expected \`--method\` to be \`hash\` or \`blocks\`, got \`${method}\``);
   if (method === 'blocks' && o.gold === '-') throw new UsageError('`--method blocks` reads the treebank twice (to count it first): give a file, not `-`');
-  mkdirSync(o.out, { recursive: true });
+  makeFolder(o.out);
   const previous = existsSync(join(o.out, FOLDS_FILE)) ? safePlan(join(o.out, FOLDS_FILE)) : null;
 
   const rejects = new RejectsLog(o.out, 0);

@@ -24,14 +24,20 @@ export function writeFileAtomic(path: string, data: Uint8Array | string): void {
   const tmp = `${path}.tmp`;
   const fd = openSync(tmp, 'w');
   try {
-    const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
-    let off = 0;
-    while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
-    fsyncSync(fd);
-  } finally {
-    closeSync(fd);
+    try {
+      const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
+      let off = 0;
+      while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
+      fsyncSync(fd);
+    } finally {
+      closeSync(fd);
+    }
+    renameSync(tmp, path);
+  } catch (e) {
+    // A full disk must not stay full of half-written files.
+    if (existsSync(tmp)) unlinkSync(tmp);
+    throw e;
   }
-  renameSync(tmp, path);
 }
 
 export function removeIfExists(path: string): void {

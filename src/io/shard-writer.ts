@@ -110,6 +110,19 @@ export class ShardWriter {
     this.pendingBytes = 0;
   }
 
+  /** After a failure: closes the open shard's temporary file without completing it. */
+  abort(): void {
+    if (this.fd < 0) return;
+    try {
+      closeSync(this.fd);
+    } catch {
+      // already unusable; the file is removed by the caller's cleanup
+    }
+    this.fd = -1;
+    this.pending = [];
+    this.pendingBytes = 0;
+  }
+
   /** Completes the open shard (if any): count file, renames, then `onShard`. */
   close(): void {
     if (this.fd < 0) return;

@@ -31,6 +31,7 @@ import { heldoutName } from '../folds/run-split.js';
 import { externalParser, parseExternal, readExternalOutput, trainExternal, type ExternalParser } from './external.js';
 import type { ParseJob, ParseWorkerInit } from './parse-worker.js';
 import { normalisedTrees, sentencesOf, treebankDigest } from './treebank-parts.js';
+import { makeFolder } from '../io/fs-faults.js';
 
 export interface JackknifeOptions {
   plan: string;
@@ -94,8 +95,8 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
     if (names.has(n)) throw new UsageError(`\`--parse ${f}\` would write \`${n}\`, which ${names.get(n)} also writes; rename one of the files`);
     names.set(n, `\`${f}\``);
   }
-  mkdirSync(join(o.out, 'models'), { recursive: true });
-  mkdirSync(join(o.out, 'logs'), { recursive: true });
+  makeFolder(join(o.out, 'models'));
+  makeFolder(join(o.out, 'logs'));
   const stateFile = join(o.out, STATE_FILE);
   const state: JackknifeState = existsSync(stateFile) ? parseJackknifeState(readFileSync(stateFile, 'utf8')) : emptyJackknifeState();
 

@@ -9,7 +9,7 @@
  * totals are checked to reconcile before the manifest is written.
  */
 import { createHash, type Hash } from 'node:crypto';
-import { appendFileSync, existsSync, mkdirSync, readFileSync, realpathSync, statSync } from 'node:fs';
+import { appendFileSync, existsSync, readFileSync, realpathSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
@@ -35,7 +35,8 @@ import { HASH_RULE } from '../stages/hash-features.js';
 import { joinVerdict, type PlannedFold } from '../stages/align-gold.js';
 import { TOOL_VERSION } from '../version.js';
 import type { SentenceWorkerInit } from './sentence-worker.js';
-import { clearPrepareOutput, JOURNAL } from './output-dir.js';
+import { environmentError, makeFolder } from '../io/fs-faults.js';
+import { clearPrepareOutput, JOURNAL, keepWhatResumeNeeds } from './output-dir.js';
 
 export interface PrepareOptions {
   gold: string;
@@ -116,6 +117,16 @@ type Item =
   | { kind: 'job'; seq: number; id: string; file: string; line: number | null; fold: number | null; source: ModelIdentity | null; goldAt: string };
 
 export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
+  try {
+    return await prepareOnce(o);
+  } catch (e) {
+    // A failed run keeps what a resume needs (completed shards, the journal, the rejects so far), nothing else.
+    if (!(e instanceof SimulatedStop)) keepWhatResumeNeeds(o.out);
+    throw environmentError(e, o.out, 'write', 'run the same command again: it resumes after the shards completed so far');
+  }
+}
+
+async function prepareOnce(o: PrepareOptions): Promise<PrepareSummary> {
   const started = Date.now();
   const workers = o.workers ?? availableParallelism();
   if (!Number.isInteger(workers) || workers < 0 || workers > 256) throw new UsageError(`expected \`--workers\` to be an integer from 0 to 256, got \`${o.workers}\``);
@@ -127,7 +138,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const plan = planned?.plan ?? null;
   const inputs = { gold: inputInfo(o.gold), nbest: o.nbest.map(inputInfo), plan: planned ? inputInfo(planned.file) : null };
   refuseRepeatedDumps(o.nbest);
-  mkdirSync(o.out, { recursive: true });
+  makeFolder(o.out);
   const usesStdin = [o.gold, ...o.nbest].includes('-');
   const progress = createProgress({ quiet: o.quiet ?? false, label: 'sheaf prepare', totalBytes: usesStdin ? null : inputs.nbest.reduce((a, i) => a + (i.bytes ?? 0), 0) });
 
@@ -257,6 +268,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     if (keepsNames) namesSummary = writeNames(o.out, (await pool.collect()).flat() as string[], pipeline.hashing);
   } catch (e) {
     rejects.close();
+    writer.abort();
     throw e;
   } finally {
     await pool?.close();

@@ -8,7 +8,7 @@
  * picks the epoch kept.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { F1Table } from '../core/f1-table.js';
 import { UsageError } from '../core/errors.js';
@@ -26,6 +26,7 @@ import { minimize } from './lbfgs.js';
 import { LoglinearObjective } from './loglinear.js';
 import { AveragedPerceptron } from './perceptron.js';
 import { pick, scores, type RankingList } from './ranking.js';
+import { makeFolder } from '../io/fs-faults.js';
 
 export interface TrainOptions {
   shards: string;
@@ -219,7 +220,7 @@ export async function runTrain(o: TrainOptions, log: (line: string) => void = ()
     names: null,
   };
   const copies = [{ from: join(o.shards, m.pipeline.files ?? PIPELINE_FILES), to: PIPELINE_FILES }].filter((c) => existsSync(c.from));
-  mkdirSync(o.out, { recursive: true });
+  makeFolder(o.out);
   // A folder with a model.json holds a whole model: drop the old one before writing the new.
   rmSync(join(o.out, 'model.json'), { force: true });
   if (m.names) {
