@@ -62,6 +62,8 @@ interface DamagedUnit {
   endLine: number;
   /** Brackets left open at the unit's end. */
   open: number;
+  /** The line where another tree starts before the next tree in column 1 (0: none). */
+  extraLine: number;
   /** `)` with nothing open. */
   strays: number;
   /** Where the unit's first tree closed (0 if it never did). */
@@ -107,6 +109,14 @@ export class BracketSplitter {
   private unitTooLong = false;
   private unitCloseLine = 0;
   private unitCloseColumn = 0;
+  /** Line of the last tree's close in the unit; trees after the first (empty brackets aside), and the line of the first. */
+  private unitLastClose = 0;
+  private unitExtra = 0;
+  private unitExtraLine = 0;
+  /** True while reading the file's first unit (several trees on its first line make the layout free). */
+  private firstUnit = true;
+  /** A second tree opened on the line of a one-line first tree: the layout turns free if it is a real tree. */
+  private maybeFree = false;
   /** Damaged units left open, which the next unit may continue. */
   private pending: DamagedUnit[] = [];
   private out: SplitItem[] = [];
@@ -148,6 +158,14 @@ export class BracketSplitter {
           if (this.layout === 'column1') this.startUnit();
         }
         if (this.depth === 0) {
+          if (this.layout === 'column1' && this.unitTrees > 0) {
+            // Another tree before the next tree in column 1: the first closed early (or a stretch was repeated),
+            // unless the file starts with several trees on its first line.
+            // (Only when nothing else was seen: a damaged first tree must not change the layout.)
+            this.maybeFree = this.firstUnit && this.unitTrees === 1 && this.unitLine === this.line && this.unitLastClose === this.line && this.unitItems.length === 1 && this.strayRun === 0;
+            this.unitExtra++;
+            if (this.unitExtraLine === 0) this.unitExtraLine = this.line;
+          }
           this.treeLine = this.line;
           this.treeColumn = this.column;
           this.skipping = false;
@@ -159,6 +177,7 @@ export class BracketSplitter {
         if (this.depth === 0) {
           this.strayClose();
         } else if (--this.depth === 0) {
+          this.unitLastClose = this.line;
           if (this.unitTrees === 1 && this.unitCloseLine === 0) {
             this.unitCloseLine = this.line;
             this.unitCloseColumn = this.column;
@@ -169,9 +188,14 @@ export class BracketSplitter {
             const piece = chunk.slice(from, i + 1);
             const text = this.parts.length === 0 ? piece : this.parts.join('') + piece;
             if (this.layout === 'column1' && this.unitTrees > 1 && isEmptyBracket(text)) {
+              this.unitExtra--;
               this.emit({ error: new DataError('empty-tree', `expected a tree, got \`${text}\` after the tree that starts at line ${this.unitLine}, column 1 (an empty bracket is no sentence; it is skipped)`,
                 { line: this.treeLine, column: this.treeColumn }), tree: false, line: this.treeLine, endLine: this.line });
-            } else this.emit({ text, line: this.treeLine, column: this.treeColumn, endLine: this.line });
+            } else {
+              this.emit({ text, line: this.treeLine, column: this.treeColumn, endLine: this.line });
+              if (this.maybeFree) this.becomeFree();
+            }
+            this.maybeFree = false;
           }
           this.resetTree();
           from = -1;
@@ -260,6 +284,15 @@ export class BracketSplitter {
       { line: this.treeLine, column: this.treeColumn }), this.line));
   }
 
+  /** Several trees on the file's first line: trees are cut wherever a bracket opens at depth 0. */
+  private becomeFree(): void {
+    this.layout = 'free';
+    for (const item of this.unitItems) this.out.push(item);
+    this.unitItems = [];
+    this.unitLine = 0;
+    this.unitExtra = 0;
+  }
+
   private startUnit(): void {
     this.unitLine = this.line;
     this.unitItems = [];
@@ -268,6 +301,9 @@ export class BracketSplitter {
     this.unitTooLong = false;
     this.unitCloseLine = 0;
     this.unitCloseColumn = 0;
+    this.unitLastClose = 0;
+    this.unitExtra = 0;
+    this.unitExtraLine = 0;
     this.depth = 0;
     this.resetTree();
   }
@@ -277,10 +313,12 @@ export class BracketSplitter {
     if (this.unitLine === 0) return;
     const open = this.skipping ? 0 : this.depth;
     // A `)` too many may sit anywhere inside the tree (it then closes early), so any damages the unit.
-    const damaged = this.unitTooLong || open > 0 || this.unitStrays > 0;
+    // So does another tree before the next tree in column 1 (one tree per column-1 start; an empty `()` is only skipped).
+    const damaged = this.unitTooLong || open > 0 || this.unitStrays > 0 || this.unitExtra > 0;
     const endLine = nextTree ? Math.max(this.unitLine, this.line - 1) : this.line;
     const items = this.unitItems;
-    const unit: DamagedUnit = { line: this.unitLine, endLine, open, strays: this.unitStrays, closeLine: this.unitCloseLine, closeColumn: this.unitCloseColumn, tooLong: this.unitTooLong };
+    this.firstUnit = false;
+    const unit: DamagedUnit = { line: this.unitLine, endLine, open, extraLine: this.unitExtraLine, strays: this.unitStrays, closeLine: this.unitCloseLine, closeColumn: this.unitCloseColumn, tooLong: this.unitTooLong };
     this.unitLine = 0;
     this.unitItems = [];
     const next = nextTree ? this.line : 0;
@@ -336,6 +374,9 @@ export class BracketSplitter {
     } else if (first.open > 0) {
       error = new DataError('unbalanced',
         `expected \`)\` before the next tree: the tree that starts at line ${first.line}, column 1 still has ${first.open} bracket(s) open ${nextTree ? `when a new tree starts in column 1 at line ${next}` : 'when the input ends'}${cost}`, at);
+    } else if (first.strays === 0) {
+      error = new DataError('unbalanced',
+        `expected one tree from line ${first.line}, column 1 to the next tree in column 1: it closes at line ${first.closeLine}, column ${first.closeColumn}, but ${first.extraLine === first.closeLine ? 'the same line' : `line ${first.extraLine}`} opens another bracket at depth 0 (a \`)\` too many inside it, a \`(\` missing, or a stretch repeated?)${cost}`, at);
     } else {
       error = new DataError('unbalanced',
         `expected as many \`)\` as \`(\`: the tree that starts at line ${first.line}, column 1 has ${first.strays} \`)\` too many before the next tree in column 1 (its first bracket closes at line ${first.closeLine}, column ${first.closeColumn}; a \`)\` too many inside it closes it early)${cost}`, at);

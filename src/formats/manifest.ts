@@ -10,6 +10,7 @@ import { UsageError } from '../core/errors.js';
 import type { ModelIdentity, PipelineConfig } from '../records.js';
 import { PIPELINE_FILES } from './pipeline-files.js';
 import { SHARD_FORMAT } from './shard-record.js';
+import { show } from '../core/show.js';
 
 export { SHARD_FORMAT };
 
@@ -121,7 +122,7 @@ export function parseManifest(text: string, dir: string): ShardManifest {
   if (raw === null || typeof raw !== 'object' || Array.isArray(raw)) return fail('is not a JSON object');
   const m = raw as Record<string, unknown>;
   if (m.format !== SHARD_FORMAT) {
-    return fail(`says format ${JSON.stringify(m.format)}; this sheaf reads \`${SHARD_FORMAT}\` (run \`sheaf prepare\` again to rewrite shards of an older format)`);
+    return fail(`says format ${show(m.format)}; this sheaf reads \`${SHARD_FORMAT}\` (run \`sheaf prepare\` again to rewrite shards of an older format)`);
   }
   const h = m.hashing as Record<string, unknown> | undefined;
   if (!isObject(h) || !Number.isInteger(h.bits) || (h.bits as number) < 1 || (h.bits as number) > 31) return fail('has no valid `hashing.bits`');
@@ -131,7 +132,7 @@ export function parseManifest(text: string, dir: string): ShardManifest {
   if (!isObject(p) || !isDigest(p.digest) || !isObject(p.config) || !Array.isArray(p.config.stages) || !Array.isArray(p.config.templates)) {
     return fail('has no valid `pipeline` {digest, config}');
   }
-  if (p.files !== undefined && p.files !== PIPELINE_FILES) return fail(`names the pipeline files ${JSON.stringify(p.files)}: expected \`${PIPELINE_FILES}\` inside the directory`);
+  if (p.files !== undefined && p.files !== PIPELINE_FILES) return fail(`names the pipeline files ${show(p.files)}: expected \`${PIPELINE_FILES}\` inside the directory`);
   const c = m.compression;
   if (!isObject(c) || (c.method !== 'gzip' && c.method !== 'none')) return fail('has no valid `compression.method` ("gzip" or "none")');
   const inputs = m.inputs;
@@ -141,14 +142,14 @@ export function parseManifest(text: string, dir: string): ShardManifest {
   }
   if (!Array.isArray(m.folds)) return fail('has no `folds` list');
   if (m.names !== undefined && m.names !== null && !(isObject(m.names) && m.names.file === NAMES_FILE)) {
-    return fail(`names the names file ${JSON.stringify(isObject(m.names) ? m.names.file : m.names)}: expected \`${NAMES_FILE}\` inside the directory, or null`);
+    return fail(`names the names file ${show(isObject(m.names) ? m.names.file : m.names)}: expected \`${NAMES_FILE}\` inside the directory, or null`);
   }
   if (!Array.isArray(m.shards)) return fail('has no `shards` list');
   const seen = new Set<string>();
   for (const [k, s] of (m.shards as unknown[]).entries()) {
     const e = s as Record<string, unknown>;
-    if (!e || typeof e.file !== 'string' || !SHARD_FILE.test(e.file)) return fail(`names shard ${k} ${JSON.stringify(e?.file)}: expected a plain name like \`shard-00000.msgpack.gz\` inside the directory`);
-    if (typeof e.counts !== 'string' || !COUNTS_FILE.test(e.counts)) return fail(`names count file ${JSON.stringify(e.counts)} for shard ${k}: expected a plain name like \`shard-00000.counts.msgpack\``);
+    if (!e || typeof e.file !== 'string' || !SHARD_FILE.test(e.file)) return fail(`names shard ${k} ${show(e?.file)}: expected a plain name like \`shard-00000.msgpack.gz\` inside the directory`);
+    if (typeof e.counts !== 'string' || !COUNTS_FILE.test(e.counts)) return fail(`names count file ${show(e.counts)} for shard ${k}: expected a plain name like \`shard-00000.counts.msgpack\``);
     if (seen.has(e.file)) return fail(`names \`${e.file}\` twice`);
     if (!isDigest(e.sha256) || !isDigest(e.countsSha256)) return fail(`shard ${k}: expected \`sha256\` and \`countsSha256\` to be sha256 digests`);
     seen.add(e.file);
