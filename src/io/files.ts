@@ -1,6 +1,8 @@
 /** Small file helpers shared by the writers: digests, atomic writes, cleanup. */
 import { createHash } from 'node:crypto';
-import { closeSync, existsSync, fsyncSync, openSync, readSync, renameSync, unlinkSync, writeSync } from 'node:fs';
+import { closeSync, existsSync, fsyncSync, openSync, readSync, realpathSync, renameSync, unlinkSync, writeSync } from 'node:fs';
+import { join, sep } from 'node:path';
+import { UsageError } from '../core/errors.js';
 
 /** sha256 of a file on disk, `sha256:<hex>`. */
 export function fileSha256(path: string): string {
@@ -38,6 +40,29 @@ export function writeFileAtomic(path: string, data: Uint8Array | string): void {
     if (existsSync(tmp)) unlinkSync(tmp);
     throw e;
   }
+}
+
+/**
+ * The path of `name` in folder `dir`, refusing one that leads outside it —
+ * `..`, an absolute path, or a symbolic link to elsewhere — since shard and
+ * model folders name their own files and a hostile one could make sheaf read
+ * (or copy into a model) any file. A missing file is left to the read to report.
+ */
+export function fileInside(dir: string, name: string): string {
+  const path = join(dir, name);
+  let base: string;
+  let real: string;
+  try {
+    base = realpathSync(dir);
+    real = realpathSync(path);
+  } catch {
+    if (name.split(/[\\/]/).includes('..') || name.startsWith('/')) throw new UsageError(`\`${name}\` names a file outside \`${dir}\`; expected a plain name inside the folder`);
+    return path;
+  }
+  if (real !== base && !real.startsWith(base + sep)) {
+    throw new UsageError(`\`${path}\` leads outside \`${dir}\` (to \`${real}\`); a shard or model folder must hold its own files: copy the file in instead of linking to it`);
+  }
+  return path;
 }
 
 export function removeIfExists(path: string): void {

@@ -17,7 +17,7 @@ import type { ShardManifest } from '../formats/manifest.js';
 import { MODEL_FORMAT, type EpochFigures, type ModelInfo } from '../formats/model.js';
 import { parseNames, formatNames } from '../formats/names-file.js';
 import { PIPELINE_FILES } from '../formats/pipeline-files.js';
-import { writeFileAtomic } from '../io/files.js';
+import { fileInside, writeFileAtomic } from '../io/files.js';
 import { saveModel } from '../io/model-dir.js';
 import { readManifest, readRankingListDir } from '../io/read-shards.js';
 import { TOOL_VERSION } from '../version.js';
@@ -80,7 +80,7 @@ export function shardsDigest(m: ShardManifest): string {
 export function cutoffMask(dir: string, m: ShardManifest, cutoff: number): { mask: Uint8Array; kept: number } {
   const counts = new Uint32Array(2 ** m.hashing.bits);
   for (const sh of m.shards) {
-    const c = decodeCounts(readFileSync(join(dir, sh.counts)), join(dir, sh.counts));
+    const c = decodeCounts(readFileSync(fileInside(dir, sh.counts)), join(dir, sh.counts));
     for (let k = 0; k < c.idx.length; k++) counts[c.idx[k]] += c.count[k];
   }
   const mask = new Uint8Array(counts.length);
@@ -219,13 +219,13 @@ export async function runTrain(o: TrainOptions, log: (line: string) => void = ()
     bestEpoch,
     names: null,
   };
-  const copies = [{ from: join(o.shards, m.pipeline.files ?? PIPELINE_FILES), to: PIPELINE_FILES }].filter((c) => existsSync(c.from));
+  const copies = [{ from: fileInside(o.shards, m.pipeline.files ?? PIPELINE_FILES), to: PIPELINE_FILES }].filter((c) => existsSync(c.from));
   makeFolder(o.out);
   // A folder with a model.json holds a whole model: drop the old one before writing the new.
   rmSync(join(o.out, 'model.json'), { force: true });
   if (m.names) {
     // The names of the buckets the model weighs.
-    const names = parseNames(readFileSync(join(o.shards, m.names.file), 'utf8'), join(o.shards, m.names.file));
+    const names = parseNames(readFileSync(fileInside(o.shards, m.names.file), 'utf8'), join(o.shards, m.names.file));
     names.names = names.names.filter(([b]) => weights[b] !== 0);
     writeFileAtomic(join(o.out, 'names.json'), formatNames(names));
     info.names = 'names.json';
