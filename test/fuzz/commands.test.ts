@@ -29,7 +29,11 @@ import { expectTyped, runs, SCALE } from './settings.js';
 
 const BIN = fileURLToPath(new URL('../../bin/sheaf.js', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-fuzz-commands-'));
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
+afterAll(() => rmSync(dir, { recursive: true, force: true }), 120_000);
+/** Removes a case's files as soon as it is checked (long runs make thousands). */
+const drop = (...paths: string[]) => {
+  for (const p of paths) rmSync(p, { recursive: true, force: true });
+};
 let n = 0;
 const fresh = (name: string) => join(dir, `${n++}-${name}`);
 
@@ -107,10 +111,12 @@ describe('fuzz: prepare on random inputs', () => {
       } catch (e) {
         expectTyped(e);
         seen.failed++;
+        drop(gold, ...dumps, out);
         return;
       }
       checkOutput(out);
       expect(({} as Record<string, unknown>).polluted).toBeUndefined();
+      drop(gold, ...dumps, out);
     }), runs(150, { timeout: 20_000 }));
     // The cases reach the interesting paths: sentences written, candidates dropped, records refused.
     expect(seen.written).toBeGreaterThan(seen.failed);
@@ -148,7 +154,10 @@ async function commandsOn(s: string, m: string): Promise<void> {
   const attempts: (() => Promise<unknown>)[] = [
     () => inspectShards({ dir: s, jsonl: true, names: true }, noop),
     () => runExport({ shards: s, format: 'svmlight' }, noop),
-    () => runTrain({ shards: s, out: fresh('m'), cutoff: 0, epochs: 1, quiet: true }),
+    () => {
+      const out = fresh('m');
+      return runTrain({ shards: s, out, cutoff: 0, epochs: 1, quiet: true }).finally(() => drop(out));
+    },
     () => runEval({ shards: s, model: m, samples: 5 }),
     () => inspectModel({ dir: m, top: 3, jsonl: true }, noop),
     () => runRerank({ dump, model: m, workers: 0 }, noop, () => {}),
@@ -175,6 +184,7 @@ describe('fuzz: train, eval, export, inspect, rerank on damaged directories', ()
       const f = join(inModel ? m : s, files[which % files.length]);
       writeFileSync(f, damage(readFileSync(f), edits));
       await commandsOn(s, m);
+      drop(s, m);
     }), runs(120, { timeout: 30_000 }));
     // Damage was seen: some commands failed (typed), most of the 6 × 120 ran.
     expect(failures).toBeGreaterThan(10);
@@ -206,6 +216,7 @@ describe('fuzz: the same through the CLI, with a 512 MB heap', () => {
         expect(q.stderr).not.toContain('internal error');
       }
       expect(existsSync(join(m, 'model.json')) || inModel).toBe(true);
+      drop(gold, ...dumps, out, s, m);
     }
   }, 240_000 * SCALE);
 });

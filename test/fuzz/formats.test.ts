@@ -56,6 +56,7 @@ function mutate(doc: unknown, ops: Op[]): unknown {
     const h = holders[at % holders.length] as Record<string, unknown>;
     const keys = Object.keys(h);
     const k = kind === 'add' || keys.length === 0 ? key : keys[at % keys.length];
+    if (Array.isArray(h) && !/^\d+$/.test(k)) continue; // an array's own keys are its indices (and `length`)
     if (kind === 'delete') delete h[k];
     else Object.defineProperty(h, k, { value, enumerable: true, writable: true, configurable: true });
   }
