@@ -5,7 +5,8 @@
  * 0 ok, 1 bad input or usage, 2 internal error.
  */
 import yargs, { type Argv } from 'yargs';
-import { DataError, ENV_FAULTS, UsageError } from './core/errors.js';
+import { DataError, UsageError } from './core/errors.js';
+import { environmentError } from './io/fs-faults.js';
 import { demoCommand } from './commands/demo.js';
 import { evalCommand } from './commands/eval.js';
 import { exportCommand } from './commands/export.js';
@@ -116,17 +117,12 @@ export async function main(rawArgv: string[]): Promise<number> {
   const argv = rawArgv.map((a) => (a === '-' ? DASH : a));
   let exitCode = 0;
   const debug = argv.includes('--debug');
-  const report = (error: unknown): number => {
+  const report = (raw: unknown): number => {
+    // A fault of the environment (permissions, a full disk, a read-only file system) is no bug of ours: status 1.
+    const error = environmentError(raw, 'the output', 'write');
     if (error instanceof UsageError || error instanceof DataError) {
       console.error(`sheaf: ${error.message}`);
       if (debug && error.stack) console.error(error.stack);
-      return 1;
-    }
-    const errno = (error as NodeJS.ErrnoException | null)?.code;
-    if (typeof errno === 'string' && ENV_FAULTS[errno] !== undefined) {
-      const path = (error as NodeJS.ErrnoException).path;
-      console.error(`sheaf: ${path ? `\`${path}\`: ` : ''}${ENV_FAULTS[errno]}`);
-      if (debug && (error as Error).stack) console.error((error as Error).stack);
       return 1;
     }
     console.error(`sheaf: internal error: ${error instanceof Error ? (debug ? error.stack : error.message) : String(error)}`);

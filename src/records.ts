@@ -40,6 +40,8 @@ export interface TreeRecord {
   /** 1-based line and column of the tree's opening bracket. */
   line: number;
   column: number;
+  /** True when the id is the tree's position (bracketed files, JSON Lines without `id`). */
+  byPosition: boolean;
   tree: Tree;
 }
 
@@ -50,6 +52,8 @@ export interface TreeTextRecord {
   file: string;
   line: number;
   column: number;
+  /** True when the id is the tree's position (bracketed files, JSON Lines without `id`). */
+  byPosition: boolean;
   /** The tree exactly as the file has it (possibly over several lines). */
   text: string;
 }
@@ -84,6 +88,8 @@ export interface RejectRecord {
   /** 1-based column, where known. */
   column: number | null;
   id: string | null;
+  /** The base rank of a candidate dropped from a list that was kept (absent for whole records). */
+  candidate?: number;
   code: RejectCode;
   reason: string;
 }
@@ -108,6 +114,8 @@ export type SentenceResult =
       /** Byte length of the record before compression. */
       rawBytes: number;
       candidates: number;
+      /** Candidates left out because their words differ from the gold's (base rank and why). */
+      dropped: { rank: number; code: RejectCode; reason: string }[];
       /** Buckets that vary in the sentence (for the shard's count file). */
       varying: Uint32Array;
       /** Per template: distinct buckets fired, of which vary (2 entries each). */

@@ -94,6 +94,10 @@ describe('prepare: status 1 when a run writes nothing or rejects too much', () =
   it('fails above --max-reject-rate and passes when the rate allows it', async () => {
     await expect(runPrepare({ gold: at('gold.trees'), nbest: [at('mostly-bad.jsonl')], pipeline, out: at('bad'), workers: 0, quiet: true }))
       .rejects.toThrow(/rejected 3 of 4 n-best lists \(75\.0 %, over the limit of 50 %/);
+    // A list whose every candidate has other words than its gold sentence is refused whole (one bad candidate is only dropped).
+    const reasons = readFileSync(at('bad/rejects.jsonl'), 'utf8').trim().split('\n').map((l) => JSON.parse(l));
+    expect(reasons.map((r) => [r.code, r.candidate ?? null])).toEqual([['yield-mismatch', null], ['yield-mismatch', null], ['yield-mismatch', null]]);
+    expect(reasons[0].reason).toMatch(/the words of every candidate \(2\) differ from the gold tree's/);
     // The same output, re-run: up to date, and still over the limit.
     await expect(runPrepare({ gold: at('gold.trees'), nbest: [at('mostly-bad.jsonl')], pipeline, out: at('bad'), workers: 0, quiet: true })).rejects.toThrow(/rejected 3 of 4/);
     const s = await runPrepare({ gold: at('gold.trees'), nbest: [at('mostly-bad.jsonl')], pipeline, out: at('bad'), workers: 0, quiet: true, maxRejectRate: 0.8 });
@@ -108,7 +112,7 @@ describe('output folders', () => {
     expect(claimOutputFolder(at('empty'), 'model')).toEqual({ fresh: true });
     writeFileSync(at('a-file'), 'x');
     expect(() => claimOutputFolder(at('a-file'), 'shards')).toThrow(/is a file; expected a folder for sheaf prepare/);
-    expect(() => claimOutputFolder(at('a-file/under'), 'shards')).toThrow(/cannot make the output folder .*ENOTDIR/);
+    expect(() => claimOutputFolder(at('a-file/under'), 'shards')).toThrow(/cannot make the folder .*a part of that path is a file.*ENOTDIR/);
     // A file system where mkdir fails with ENOENT (Node's recursive mkdir never returns there).
     if (existsSync('/proc/self')) expect(() => claimOutputFolder('/proc/sheaf-out/deeper', 'model')).toThrow(/cannot make the output folder `\/proc\/sheaf-out\/deeper`.*ENOENT/);
     expect(outputKinds(['manifest.json', 'shard-00000.msgpack.gz', 'rejects.jsonl'])).toEqual(['shards']);

@@ -8,11 +8,17 @@ import { describe, expect, it } from 'vitest';
 import { parseFoldPlan } from '../src/formats/fold-plan.js';
 import { parseManifest, SHARD_FORMAT } from '../src/formats/manifest.js';
 
+const digest = `sha256:${'ab'.repeat(32)}`;
 const good = {
   format: SHARD_FORMAT,
+  pipeline: { digest, config: { format: 'sheaf-pipeline/1', stages: [], templates: [] }, files: 'pipeline-files.msgpack' },
   hashing: { bits: 20, seed: 0 },
-  shards: [{ file: 'shard-00000.msgpack.gz', counts: 'shard-00000.counts.msgpack', sentences: 2, candidates: 5, bytes: 100 }],
-  totals: { read: 3, written: 2, rejected: 1 },
+  compression: { method: 'gzip', level: 6, unit: 'sentence' },
+  inputs: { gold: { path: 'g.trees', bytes: 10, sha256: digest }, nbest: [{ path: 'd.jsonl', bytes: 10, sha256: digest, records: 3 }], plan: null },
+  folds: [],
+  shards: [{ file: 'shard-00000.msgpack.gz', counts: 'shard-00000.counts.msgpack', sentences: 2, candidates: 5, bytes: 100, sha256: digest, countsSha256: digest }],
+  totals: { read: 3, written: 2, rejected: 1, candidatesRead: 6, candidates: 5, candidatesDropped: 1 },
+  names: null,
 };
 const withChange = (f: (m: any) => void) => {
   const m = JSON.parse(JSON.stringify(good));
@@ -33,6 +39,12 @@ describe('manifest', () => {
     ['totals that do not reconcile', (m: any) => { m.totals.rejected = 0; }, /totals do not reconcile/],
     ['shards that do not hold the written sentences', (m: any) => { m.shards[0].sentences = 3; }, /holding 3 sentences but says 2/],
     ['the same shard twice', (m: any) => { m.shards.push({ ...m.shards[0] }); m.totals.written = 4; m.totals.read = 5; }, /twice/],
+    ['candidate totals that do not reconcile', (m: any) => { m.totals.candidatesDropped = 0; }, /candidate totals do not reconcile \(read 6 ≠ kept 5 \+ dropped 0\)/],
+    ['pipeline files outside the directory', (m: any) => { m.pipeline.files = '../../secret'; }, /expected `pipeline-files\.msgpack` inside the directory/],
+    ['a names file outside the directory', (m: any) => { m.names = { file: '/etc/passwd' }; }, /expected `names\.json` inside the directory/],
+    ['no pipeline digest', (m: any) => { delete m.pipeline.digest; }, /no valid `pipeline`/],
+    ['inputs without digests', (m: any) => { m.inputs.nbest[0].sha256 = 7; }, /no valid `inputs`/],
+    ['a shard without its sha256', (m: any) => { delete m.shards[0].sha256; }, /`sha256`/],
   ])('refuses %s', (_, change, message) => {
     expect(() => parseManifest(withChange(change), 'shards')).toThrow(message);
   });

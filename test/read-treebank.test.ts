@@ -2,15 +2,17 @@
  * The streaming treebank reader: layouts, formats, gzip, and bad input. Each
  * bad-input case checks the error's code, file, line and column.
  */
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { afterAll, describe, expect, it } from 'vitest';
 import { DataError } from '../src/core/errors.js';
 import { createVocabulary } from '../src/core/interner.js';
+import { parseTree } from '../src/core/read-brackets.js';
 import { writeTree } from '../src/core/write-brackets.js';
 import { readTreebank, type ReadTreebankOptions } from '../src/io/read-treebank.js';
+import { seededRandom } from './helpers/synthetic-nbest.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-read-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -83,11 +85,20 @@ describe('readTreebank: bad input names file, line, column', () => {
     expect(bad[0].message).toContain('expected `)`');
   });
 
-  it('unexpected `)` between trees', async () => {
+  it('a `)` too many: the tree is refused (it may sit inside and close it early), the next keeps its id', async () => {
     const p = file('(S (NN lamp)))\n(S (NN rope))');
     const { trees, bad } = await readAll(p);
+    expect(trees.map((t) => t.id)).toEqual(['2']);
+    expect(bad).toHaveLength(1);
+    expect(bad[0]).toMatchObject({ code: 'unbalanced', line: 1, column: 1, id: '1' });
+    expect(bad[0].message).toContain('1 `)` too many');
+  });
+
+  it('unexpected `)` between trees (trees not in column 1)', async () => {
+    const p = file(' (S (NN lamp)))\n (S (NN rope))');
+    const { trees, bad } = await readAll(p);
     expect(trees).toHaveLength(2);
-    expect(bad[0]).toMatchObject({ code: 'unexpected-close', line: 1, column: 14 });
+    expect(bad[0]).toMatchObject({ code: 'unexpected-close', line: 1, column: 15 });
   });
 
   it('a label-less constituent inside a tree', async () => {
@@ -137,7 +148,9 @@ describe('readTreebank: bad input names file, line, column', () => {
     expect(trees.map((t) => [t.id, t.text])).toEqual([['2', '(S (NN lamp))']]);
     expect(bad).toHaveLength(1);
     expect(bad[0]).toMatchObject({ code: 'tree-too-long', line: 1, column: 1 });
-    expect(bad[0].message).toContain('--max-tree-chars');
+    // It once suggested a `--max-tree-chars` option that no command has.
+    expect(bad[0].message).not.toMatch(/--[a-z]/);
+    expect(bad[0].message).toContain('at most 4194304 characters');
   });
 
   it('a 10 MB single-line tree is read when the limit allows it (no recursion limit)', async () => {
@@ -170,5 +183,110 @@ describe('readTreebank: bad input names file, line, column', () => {
 
   it('a missing file is a usage error that names it', async () => {
     await expect(readAll(join(dir, 'nope.trees'))).rejects.toThrow(/no such file/);
+  });
+});
+
+/**
+ * Ids by position must not drift: one damaged tree costs that tree only,
+ * whatever the damage (the campaign behind issue 11 saw one extra `)` cost
+ * 1,199 of 1,200 sentences). Trees come from the demo corpus (indented
+ * continuation lines, trees in column 1).
+ */
+describe('readTreebank: one damaged tree costs one tree, ids by position stay in step', () => {
+  const corpus = readFileSync(new URL('../demo-corpus/huts-train.trees', import.meta.url), 'utf8').split(/\n(?=\( \()/).slice(0, 40).map((t) => t.trimEnd());
+  const ref = corpus.map((t) => writeTree(parseTree(t, createVocabulary())));
+
+  /** Reads `texts` joined by newlines; checks every tree but `damaged` keeps its id (position) and its tree. */
+  async function expectOnlyDamaged(texts: string[], damaged: number) {
+    const { trees, bad } = await readAll(file(texts.join('\n') + '\n'));
+    const byId = new Map(trees.map((t) => [t.id, t.text]));
+    for (let k = 0; k < ref.length; k++) if (k !== damaged) expect(byId.get(String(k + 1)), `tree ${k + 1}`).toBe(ref[k]);
+    expect(trees.every((t) => Number(t.id) <= ref.length)).toBe(true);
+    // The damaged tree is read whole or refused as one tree under its own id.
+    const refused = bad.filter((e) => e.id !== undefined);
+    expect(refused.every((e) => e.id === String(damaged + 1))).toBe(true);
+    expect(refused.length + trees.length).toBe(ref.length);
+    return { trees, bad };
+  }
+
+  it('an extra `)` inside a tree', async () => {
+    const t = corpus.slice();
+    t[5] = t[5].replace('(NN warden))', '(NN warden)))');
+    expect(t[5]).not.toBe(corpus[5]);
+    const { bad } = await expectOnlyDamaged(t, 5);
+    expect(bad).toHaveLength(1);
+    expect(bad[0]).toMatchObject({ code: 'unbalanced', line: corpus.slice(0, 5).join('\n').split('\n').length + 1, column: 1, id: '6' });
+    expect(bad[0].message).toMatch(/count(s)? as one refused tree, so ids by position stay in step; reading resumes with the tree in column 1 at line \d+/);
+  });
+
+  it('an unindented continuation line that starts with `(`', async () => {
+    const t = corpus.slice();
+    t[7] = t[7].replace('\n    (. .)', '\n(. .)');
+    expect(t[7]).not.toBe(corpus[7]);
+    const { bad } = await expectOnlyDamaged(t, 7);
+    expect(bad).toHaveLength(1);
+    expect(bad[0].message).toContain('read as the rest of this tree');
+  });
+
+  it('two unindented continuation lines, the first one still open', async () => {
+    const t = corpus.slice();
+    t[2] = '( (S (NP-SBJ (DT the) (NN warden))\n(VP (VBD logged)\n(NP (CD two) (NNS crates)))\n    (. .)) )';
+    const { bad } = await expectOnlyDamaged(t, 2);
+    expect(bad).toHaveLength(1);
+  });
+
+  it('`()` after a tree is skipped and the tree kept', async () => {
+    const t = corpus.slice();
+    t[3] += ' ()';
+    const { trees, bad } = await expectOnlyDamaged(t, -1);
+    expect(trees.map((x) => x.id)).toEqual(ref.map((_, k) => String(k + 1)));
+    expect(bad.map((e) => e.code)).toEqual(['empty-tree']);
+  });
+
+  it('a line of 100,000 stray `)` is one report, not 100,000', async () => {
+    // Before the first tree: reported alone.
+    const before = await readAll(file(')'.repeat(100_000) + '\n' + corpus.join('\n') + '\n'));
+    expect(before.trees).toHaveLength(ref.length);
+    expect(before.bad).toHaveLength(1);
+    expect(before.bad[0]).toMatchObject({ code: 'unexpected-close', line: 1, column: 1 });
+    expect(before.bad[0].message).toContain('100000 `)`');
+    // After tree 5: that tree is refused, once.
+    const t = corpus.slice();
+    t[4] += '\n' + ')'.repeat(100_000);
+    const { bad } = await expectOnlyDamaged(t, 4);
+    expect(bad).toHaveLength(1);
+    expect(bad[0].message).toContain('100000 `)` too many');
+    // Between trees that do not start in column 1: one report.
+    const free = await readAll(file(' (S (NN lamp))\n' + ')'.repeat(100_000) + ' \n)))\n (S (NN rope))\n'));
+    expect(free.trees.map((x) => x.id)).toEqual(['1', '2']);
+    expect(free.bad).toHaveLength(1);
+    expect(free.bad[0].message).toContain('100003 `)` with no bracket open (through line 3, column 3)');
+  });
+
+  it('300 seeded single damages (a bracket added or removed, a line unindented, junk after a tree) never cost another tree', async () => {
+    const rand = seededRandom(11);
+    const pick = (n: number) => Math.floor(rand() * n);
+    for (let round = 0; round < 300; round++) {
+      const t = corpus.slice();
+      const k = pick(t.length);
+      const s = t[k];
+      const kind = round % 5;
+      let d: string;
+      if (kind === 0 || kind === 1) {
+        const at = pick(s.length + 1);
+        d = s.slice(0, at) + (kind === 0 ? ')' : '(') + s.slice(at);
+      } else if (kind === 2) {
+        const brackets = [...s].flatMap((c, i) => (c === '(' || c === ')') && i > 0 ? [i] : []);
+        const at = brackets[pick(brackets.length)];
+        d = s.slice(0, at) + s.slice(at + 1);
+      } else if (kind === 3) {
+        const lines = s.split('\n');
+        const j = 1 + pick(lines.length - 1);
+        lines[j] = lines[j].trimStart();
+        d = lines.join('\n');
+      } else d = s + ' ()';
+      t[k] = d;
+      await expectOnlyDamaged(t, k);
+    }
   });
 });

@@ -87,16 +87,14 @@ export class UsageError extends Error {
   }
 }
 
-/** Faults of the machine, not of sheaf: what they mean for the user (status 1). */
-export const ENV_FAULTS: Record<string, string> = {
-  EACCES: 'permission denied; choose a file or folder you can read and write, or change its permissions',
-  EPERM: 'operation not permitted; choose a file or folder you can read and write',
-  EROFS: 'the file system is read-only; write the output somewhere else',
-  ENOSPC: 'no space left on the device; free some space or write the output elsewhere, then run the command again (a prepare run resumes from its last complete shard)',
-  EDQUOT: 'disk quota exceeded; free some space or write the output elsewhere, then run the command again',
-  EEXIST: 'already exists where sheaf needs to make a folder or file; choose another output path',
-  ENOTDIR: 'a part of this path is a file, not a folder; choose another path',
-  EISDIR: 'is a folder; expected a file',
-  ENOENT: 'no such file or folder',
-  EMFILE: 'too many open files; raise the limit (ulimit -n) or give fewer inputs at once',
-};
+/**
+ * The environment refused a file operation: permission denied, a full disk, a
+ * read-only file system, a file where a folder was expected. Not a bug of
+ * ours and not bad data: status 1, with the path and what to do.
+ */
+export class EnvironmentError extends UsageError {
+  constructor(readonly code: string, readonly path: string, message: string, options?: { cause?: unknown }) {
+    super(message, options);
+    this.name = 'EnvironmentError';
+  }
+}

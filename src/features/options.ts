@@ -4,6 +4,7 @@
  * keys list the valid ones.
  */
 import { UsageError } from '../core/errors.js';
+import { show as showValue } from '../core/show.js';
 
 export type OptionSpec =
   | { type: 'boolean'; default: boolean; doc: string }
@@ -18,7 +19,7 @@ export type OptionSchema = Record<string, OptionSpec>;
 /** The option values a schema gives (loosely typed; templates narrow them). */
 export type OptionValues = Record<string, unknown>;
 
-const show = (v: unknown) => `\`${JSON.stringify(v)}\``;
+const show = (v: unknown) => `\`${showValue(v)}\``;
 
 export function checkOptions(given: Record<string, unknown>, schema: OptionSchema, where: string, reserved: readonly string[] = []): OptionValues {
   const out: OptionValues = {};

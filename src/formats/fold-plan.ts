@@ -10,7 +10,9 @@
  * Pure: parsing and checking only; reading the file is the caller's.
  */
 import { UsageError } from '../core/errors.js';
+import { notWellFormed } from '../core/well-formed.js';
 import type { ModelIdentity } from '../records.js';
+import { show } from '../core/show.js';
 
 export const FOLDS_FORMAT = 'sheaf-folds/1';
 
@@ -33,10 +35,12 @@ export interface FoldPlan {
 
 const has = (o: object, key: string) => Object.prototype.hasOwnProperty.call(o, key);
 
-/** Checks a model identity: `{parser: string, fingerprint: string}`. */
+/** Checks a model identity: `{parser: string, fingerprint: string}`, both non-empty. */
 export function isModelIdentity(v: unknown): v is ModelIdentity {
   return v !== null && typeof v === 'object' && !Array.isArray(v)
     && typeof (v as ModelIdentity).parser === 'string' && typeof (v as ModelIdentity).fingerprint === 'string'
+    // Empty names cannot be told from "no source" (manifests count unnamed sources as empty strings).
+    && (v as ModelIdentity).parser.length > 0 && (v as ModelIdentity).fingerprint.length > 0
     && Object.keys(v as object).every((k) => k === 'parser' || k === 'fingerprint');
 }
 
@@ -51,7 +55,7 @@ export function parseFoldPlan(text: string, file: string): FoldPlan {
   const shape = `{"format": "${FOLDS_FORMAT}", "k", "folds": [{"fold", "ids", "model"}]}`;
   if (raw === null || typeof raw !== 'object' || Array.isArray(raw)) throw new UsageError(`${file}: expected a fold plan ${shape}`);
   const r = raw as Record<string, unknown>;
-  if (r.format !== FOLDS_FORMAT) throw new UsageError(`${file}: expected \`format\` to be \`${FOLDS_FORMAT}\`, got ${JSON.stringify(r.format)}`);
+  if (r.format !== FOLDS_FORMAT) throw new UsageError(`${file}: expected \`format\` to be \`${FOLDS_FORMAT}\`, got ${show(r.format)}`);
   if (!Array.isArray(r.folds) || r.folds.length === 0) throw new UsageError(`${file}: expected \`folds\` to be a non-empty list; a plan looks like ${shape}`);
   const seenFolds = new Set<number>();
   const seenIds = new Map<string, number>();
@@ -59,7 +63,7 @@ export function parseFoldPlan(text: string, file: string): FoldPlan {
     const at = `${file}: folds[${k}]`;
     if (f === null || typeof f !== 'object' || Array.isArray(f)) throw new UsageError(`${at}: expected {"fold": integer, "ids": [...], "model": {"parser", "fingerprint"} | null}`);
     const e = f as Record<string, unknown>;
-    if (!Number.isSafeInteger(e.fold) || (e.fold as number) < 0) throw new UsageError(`${at}: expected \`fold\` to be an integer ≥ 0, got ${JSON.stringify(e.fold)}`);
+    if (!Number.isSafeInteger(e.fold) || (e.fold as number) < 0) throw new UsageError(`${at}: expected \`fold\` to be an integer ≥ 0, got ${show(e.fold)}`);
     const fold = e.fold as number;
     if (seenFolds.has(fold)) throw new UsageError(`${at}: fold ${fold} appears twice`);
     seenFolds.add(fold);
@@ -68,20 +72,22 @@ export function parseFoldPlan(text: string, file: string): FoldPlan {
     }
     const ids = e.ids.map(String);
     for (const id of ids) {
+      const notText = notWellFormed(id, 'a sentence id');
+      if (notText) throw new UsageError(`${at}: ${notText}`);
       const prior = seenIds.get(id);
       if (prior !== undefined) throw new UsageError(`${at}: sentence \`${id}\` is also in fold ${prior}; a sentence is held out in exactly one fold`);
       seenIds.set(id, fold);
     }
     const model = has(e, 'model') ? e.model : null;
     if (model !== null && !isModelIdentity(model)) {
-      throw new UsageError(`${at}: expected \`model\` to be null or {"parser": string, "fingerprint": string}, got ${JSON.stringify(model)}`);
+      throw new UsageError(`${at}: expected \`model\` to be null or {"parser": string, "fingerprint": string} with both non-empty (\`sheaf jackknife\` fills it in), got ${show(model)}`);
     }
     const digest = has(e, 'digest') ? e.digest : null;
     if (digest !== null && typeof digest !== 'string') throw new UsageError(`${at}: expected \`digest\` to be a string or null`);
     return { fold, ids, digest: digest as string | null, model: model as ModelIdentity | null };
   });
   const k = has(r, 'k') ? r.k : folds.length;
-  if (k !== folds.length) throw new UsageError(`${file}: \`k\` is ${JSON.stringify(k)} but the plan lists ${folds.length} folds`);
+  if (k !== folds.length) throw new UsageError(`${file}: \`k\` is ${show(k)} but the plan lists ${folds.length} folds`);
   const seed = has(r, 'seed') ? r.seed : null;
   if (seed !== null && !Number.isSafeInteger(seed)) throw new UsageError(`${file}: expected \`seed\` to be an integer or null`);
   const method = has(r, 'method') ? r.method : null;

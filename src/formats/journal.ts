@@ -17,6 +17,8 @@ export interface WriterState {
   written: number;
   rejected: number;
   candidates: number;
+  /** Candidates dropped from kept lists (journals of earlier versions lack it: 0). */
+  candidatesDropped: number;
   noCandidates: number;
   /** Length of rejects.jsonl.tmp when the shard completed. */
   rejectsBytes: number;
@@ -24,7 +26,7 @@ export interface WriterState {
 }
 
 export function emptyState(): WriterState {
-  return { shards: [], consumed: 0, written: 0, rejected: 0, candidates: 0, noCandidates: 0, rejectsBytes: 0, folds: [] };
+  return { shards: [], consumed: 0, written: 0, rejected: 0, candidates: 0, candidatesDropped: 0, noCandidates: 0, rejectsBytes: 0, folds: [] };
 }
 
 export function headerLine(header: unknown, state: WriterState): string {
@@ -46,11 +48,24 @@ export function lastState(text: string, header: unknown): WriterState | null {
   }
   let state: WriterState | null = null;
   for (const l of lines.slice(1)) {
+    let next: unknown;
     try {
-      state = (JSON.parse(l) as { state: WriterState }).state;
+      next = (JSON.parse(l) as { state?: unknown } | null)?.state;
     } catch {
       break; // a torn last line: the shard before it is the last complete one
     }
+    if (!isState(next)) break; // damaged: resume from the last good line (or restart)
+    state = next;
   }
   return state;
+}
+
+function isState(v: unknown): v is WriterState {
+  if (v === null || typeof v !== 'object' || Array.isArray(v)) return false;
+  const s = v as Record<string, unknown>;
+  const count = (x: unknown) => Number.isSafeInteger(x) && (x as number) >= 0;
+  return Array.isArray(s.shards) && Array.isArray(s.folds) && ['consumed', 'written', 'rejected', 'candidates', 'noCandidates', 'rejectsBytes'].every((k) => count(s[k]))
+    && (s.candidatesDropped === undefined || count(s.candidatesDropped))
+    && s.shards.every((e) => e !== null && typeof e === 'object' && typeof (e as Record<string, unknown>).file === 'string'
+      && /^shard-\d{5}\.msgpack(\.gz)?$/.test((e as Record<string, string>).file) && typeof (e as Record<string, unknown>).sha256 === 'string');
 }

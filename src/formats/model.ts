@@ -13,6 +13,8 @@
 import { DataError, UsageError } from '../core/errors.js';
 import type { PipelineConfig } from '../records.js';
 import { MsgpackReader, MsgpackWriter } from './msgpack.js';
+import { show } from '../core/show.js';
+import { PIPELINE_FILES } from './pipeline-files.js';
 
 export const MODEL_FORMAT = 'sheaf-model/1';
 export const WEIGHTS_FORMAT = 'sheaf-weights/1';
@@ -68,7 +70,7 @@ export function decodeWeights(bytes: Uint8Array, file: string): { bits: number; 
     return bad((e as Error).message);
   }
   if (!raw || typeof raw !== 'object' || Array.isArray(raw) || raw instanceof Uint8Array) return bad('not a map');
-  if (raw.format !== WEIGHTS_FORMAT) return bad(`format is ${JSON.stringify(raw.format)}`);
+  if (raw.format !== WEIGHTS_FORMAT) return bad(`format is ${show(raw.format)}`);
   const bits = raw.bits;
   const w = raw.weights;
   if (typeof bits !== 'number' || !Number.isInteger(bits) || bits < 1 || bits > 31) return bad('`bits` is not an integer from 1 to 31');
@@ -83,7 +85,12 @@ export function parseModelInfo(text: string, dir: string): ModelInfo {
   } catch (e) {
     throw new UsageError(`\`${dir}\` is not a usable model directory: model.json is not valid JSON (${(e as Error).message}); train it again with \`sheaf train\``);
   }
-  if (raw?.format !== MODEL_FORMAT) throw new UsageError(`\`${dir}\` is not a model directory of this sheaf: model.json says format ${JSON.stringify(raw?.format)}, expected \`${MODEL_FORMAT}\``);
+  if (raw?.format !== MODEL_FORMAT) throw new UsageError(`\`${dir}\` is not a model directory of this sheaf: model.json says format ${show(raw?.format)}, expected \`${MODEL_FORMAT}\``);
   if (typeof raw.pipeline?.digest !== 'string' || !raw.pipeline.config) throw new UsageError(`\`${dir}\`: model.json has no pipeline digest and config`);
+  const h = raw.hashing;
+  if (!h || !Number.isInteger(h.bits) || h.bits < 1 || h.bits > 31 || !Number.isSafeInteger(h.seed)) throw new UsageError(`\`${dir}\`: model.json has no valid \`hashing\` {bits, seed}; train the model again`);
+  // The files it names must be its own, under their fixed names.
+  if (raw.pipeline.files !== undefined && raw.pipeline.files !== PIPELINE_FILES) throw new UsageError(`\`${dir}\`: model.json names the pipeline files ${show(raw.pipeline.files)}; expected \`${PIPELINE_FILES}\` inside the folder`);
+  if (raw.names !== undefined && raw.names !== null && raw.names !== 'names.json') throw new UsageError(`\`${dir}\`: model.json names the names file ${show(raw.names)}; expected \`names.json\` inside the folder, or null`);
   return raw as ModelInfo;
 }

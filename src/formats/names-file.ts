@@ -8,6 +8,7 @@
  * Pure: no node: imports.
  */
 import { UsageError } from '../core/errors.js';
+import { show } from '../core/show.js';
 
 export interface NamesFile {
   bits: number;
@@ -36,7 +37,7 @@ export function parseNames(text: string, file: string): NamesFile {
   const names: [number, string[]][] = [];
   for (const b of Object.keys(raw.names)) {
     const ks = raw.names[b];
-    if (!/^\d+$/.test(b) || !Array.isArray(ks) || ks.some((k: unknown) => typeof k !== 'string')) throw new UsageError(`${file}: bucket ${JSON.stringify(b)}: expected a list of key strings`);
+    if (!/^\d+$/.test(b) || !Array.isArray(ks) || ks.some((k: unknown) => typeof k !== 'string')) throw new UsageError(`${file}: bucket ${show(b)}: expected a list of key strings`);
     names.push([Number(b), ks]);
   }
   names.sort((a, b) => a[0] - b[0]);

@@ -32,6 +32,7 @@ import { DataError } from '../core/errors.js';
 import { isStoredInteger, type StoredVector, type Values } from '../core/sparse-vector.js';
 import type { RankingList, ShardCandidate, ShardSentence } from '../records.js';
 import { MsgpackError, MsgpackWriter, type Decoded } from './msgpack.js';
+import { show } from '../core/show.js';
 
 export const SHARD_FORMAT = 'sheaf-shards/2';
 
@@ -204,7 +205,7 @@ function isMap(v: Decoded | undefined): v is Map_ {
 
 function int(m: Map_, key: string, where: string, min = 0): number {
   const v = m[key];
-  if (typeof v !== 'number' || !Number.isInteger(v) || v < min) bad(`${where}: expected \`${key}\` to be an integer ≥ ${min}, got ${JSON.stringify(v)}`);
+  if (typeof v !== 'number' || !Number.isInteger(v) || v < min) bad(`${where}: expected \`${key}\` to be an integer ≥ ${min}, got ${show(v)}`);
   return v as number;
 }
 
@@ -214,7 +215,7 @@ function part(m: Map_, where: string, ik: string, vk: string, tk: string, real: 
   const t = m[tk];
   if (!(idx instanceof Uint8Array) || idx.byteLength % 4 !== 0) bad(`${where}: expected \`${ik}\` to be bin data of uint32 values`);
   const allowed = real ? ['<f4', '<f8'] : ['<i1', '<i2', '<i4'];
-  if (typeof t !== 'string' || !allowed.includes(t)) bad(`${where}: expected \`${tk}\` to be one of ${allowed.map((k) => `\`${k}\``).join(', ')}, got ${JSON.stringify(t)}`);
+  if (typeof t !== 'string' || !allowed.includes(t)) bad(`${where}: expected \`${tk}\` to be one of ${allowed.map((k) => `\`${k}\``).join(', ')}, got ${show(t)}`);
   const width = WIDTH[t as ValueType];
   if (!(val instanceof Uint8Array) || val.byteLength !== (idx as Uint8Array).byteLength / 4 * width) bad(`${where}: expected \`${vk}\` to hold one ${t} value per index`);
   const indices = view(idx as Uint8Array, 4, (b, o, n) => new Uint32Array(b, o, n));
@@ -235,11 +236,11 @@ function vector(m: Map_, where: string): StoredVector {
 export function toShardSentence(raw: Decoded): ShardSentence {
   if (!isMap(raw)) bad('expected a sentence map');
   const id = raw.id;
-  if (typeof id !== 'string') bad(`expected \`id\` to be a string, got ${JSON.stringify(id)}`);
+  if (typeof id !== 'string') bad(`expected \`id\` to be a string, got ${show(id)}`);
   const where = `sentence \`${id}\``;
   const fold = raw.fold === null ? null : int(raw, 'fold', where);
   const flag = raw.flag;
-  if (flag !== null && flag !== 'no-candidates') bad(`${where}: expected \`flag\` to be nil or "no-candidates", got ${JSON.stringify(flag)}`);
+  if (flag !== null && flag !== 'no-candidates') bad(`${where}: expected \`flag\` to be nil or "no-candidates", got ${show(flag)}`);
   const ref = raw.ref === null ? null : isMap(raw.ref) ? vector(raw.ref, `${where}, ref`) : bad(`${where}: expected \`ref\` to be a map or nil`);
   const list = raw.cands;
   if (!Array.isArray(list)) bad(`${where}: expected \`cands\` to be a list`);

@@ -7,6 +7,7 @@ import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { parseNames } from '../formats/names-file.js';
 import { loadModel } from '../io/model-dir.js';
+import { fileInside } from '../io/files.js';
 
 export interface TopWeight {
   bucket: number;
@@ -25,7 +26,7 @@ export async function inspectModel(o: { dir: string; top: number; jsonl: boolean
   const model = loadModel(o.dir);
   const info = model.info;
   let names = new Map<number, string[]>();
-  if (info.names && existsSync(join(o.dir, info.names))) names = new Map(parseNames(readFileSync(join(o.dir, info.names), 'utf8'), info.names).names);
+  if (info.names && existsSync(join(o.dir, info.names))) names = new Map(parseNames(readFileSync(fileInside(o.dir, info.names), 'utf8'), info.names).names);
   const { highest, lowest } = topWeights(model.weights, o.top);
   const row = (b: number): TopWeight => ({ bucket: b, weight: model.weights[b], names: names.get(b) ?? [] });
   if (o.jsonl) {

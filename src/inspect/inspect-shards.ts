@@ -6,12 +6,12 @@
  * per sentence (or a sentence's candidates in full with `--id`).
  */
 import { existsSync, readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import { baseChoice, oracleChoice, sentenceF1 } from '../core/f1-table.js';
 import { addVectors, storedLength, type SparseVector } from '../core/sparse-vector.js';
 import { parseNames } from '../formats/names-file.js';
 import { readManifest, readShardDir } from '../io/read-shards.js';
 import type { ShardSentence } from '../records.js';
+import { fileInside } from '../io/files.js';
 
 export interface InspectShardOptions {
   dir: string;
@@ -48,7 +48,7 @@ export async function inspectShards(o: InspectShardOptions, print: (line: string
   const manifest = readManifest(o.dir);
   let names: Map<number, string[]> | undefined;
   if (o.names) {
-    const file = join(o.dir, 'names.json');
+    const file = fileInside(o.dir, 'names.json');
     if (!existsSync(file)) print(`# ${o.dir} keeps no feature names (set \`names\` in the hashing stage to keep them)`);
     else names = new Map(parseNames(readFileSync(file, 'utf8'), file).names);
   }

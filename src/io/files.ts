@@ -1,7 +1,8 @@
 /** Small file helpers shared by the writers: digests, atomic writes, cleanup. */
 import { createHash } from 'node:crypto';
-import { closeSync, existsSync, fsyncSync, mkdirSync, openSync, readSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
-import { dirname, resolve } from 'node:path';
+import { closeSync, existsSync, fsyncSync, openSync, readSync, realpathSync, renameSync, unlinkSync, writeSync } from 'node:fs';
+import { join, sep } from 'node:path';
+import { UsageError } from '../core/errors.js';
 
 /** sha256 of a file on disk, `sha256:<hex>`. */
 export function fileSha256(path: string): string {
@@ -25,42 +26,43 @@ export function writeFileAtomic(path: string, data: Uint8Array | string): void {
   const tmp = `${path}.tmp`;
   const fd = openSync(tmp, 'w');
   try {
-    const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
-    let off = 0;
-    while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
-    fsyncSync(fd);
-  } finally {
-    closeSync(fd);
+    try {
+      const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
+      let off = 0;
+      while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
+      fsyncSync(fd);
+    } finally {
+      closeSync(fd);
+    }
+    renameSync(tmp, path);
+  } catch (e) {
+    // A full disk must not stay full of half-written files.
+    if (existsSync(tmp)) unlinkSync(tmp);
+    throw e;
   }
-  renameSync(tmp, path);
 }
 
 /**
- * mkdir -p, one level at a time from the nearest existing folder. (Node's
- * recursive mkdirSync never returns on some file systems, such as /proc, where
- * mkdir fails with ENOENT; this throws the errno error instead.)
+ * The path of `name` in folder `dir`, refusing one that leads outside it —
+ * `..`, an absolute path, or a symbolic link to elsewhere — since shard and
+ * model folders name their own files and a hostile one could make sheaf read
+ * (or copy into a model) any file. A missing file is left to the read to report.
  */
-export function makeFolder(path: string): void {
-  const missing: string[] = [];
-  let p = resolve(path);
-  for (;;) {
-    try {
-      statSync(p);
-      break;
-    } catch {
-      missing.push(p);
-      const up = dirname(p);
-      if (up === p) break;
-      p = up;
-    }
+export function fileInside(dir: string, name: string): string {
+  const path = join(dir, name);
+  let base: string;
+  let real: string;
+  try {
+    base = realpathSync(dir);
+    real = realpathSync(path);
+  } catch {
+    if (name.split(/[\\/]/).includes('..') || name.startsWith('/')) throw new UsageError(`\`${name}\` names a file outside \`${dir}\`; expected a plain name inside the folder`);
+    return path;
   }
-  for (let i = missing.length - 1; i >= 0; i--) {
-    try {
-      mkdirSync(missing[i]);
-    } catch (e) {
-      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
-    }
+  if (real !== base && !real.startsWith(base + sep)) {
+    throw new UsageError(`\`${path}\` leads outside \`${dir}\` (to \`${real}\`); a shard or model folder must hold its own files: copy the file in instead of linking to it`);
   }
+  return path;
 }
 
 export function removeIfExists(path: string): void {

@@ -42,6 +42,7 @@ export class GoldIndex {
           continue;
         }
         index.add(k, rec.text, rec.line);
+        if (rec.byPosition) index.byPosition = true;
       }
       index.flush();
     } catch (e) {
@@ -51,8 +52,16 @@ export class GoldIndex {
     return index;
   }
 
+  /** True when (some) gold ids are tree positions, which a damaged file could shift. */
+  byPosition = false;
+
   get size(): number {
     return this.ids.size;
+  }
+
+  /** Where the gold tree of an ordinal came from, for messages when ids are positions ('' otherwise). */
+  origin(ordinal: number): string {
+    return this.byPosition ? `; the gold tree with this id (ids are positions) is the one at ${this.file} line ${this.lines[ordinal]}` : '';
   }
 
   private add(k: number, text: string, line: number): void {

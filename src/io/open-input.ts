@@ -143,8 +143,18 @@ export async function* decodeText(chunks: AsyncIterable<Buffer>): AsyncGenerator
     line += countLines(bytes);
     return piece;
   };
+  // Pieces of a line still open, joined once it ends (joining per chunk would be quadratic for a long line in small chunks).
+  const open: Buffer[] = [];
+  let openBytes = 0;
   for await (const chunk of chunks) {
-    const buf: Buffer = carry ? Buffer.concat([carry, chunk]) : chunk;
+    if (chunk.indexOf(10) < 0 && (carry?.length ?? 0) + openBytes + chunk.length < CHUNK) {
+      open.push(chunk);
+      openBytes += chunk.length;
+      continue;
+    }
+    const buf: Buffer = carry || open.length ? Buffer.concat([...(carry ? [carry] : []), ...open, chunk]) : chunk;
+    open.length = 0;
+    openBytes = 0;
     let cut = buf.lastIndexOf(10) + 1;
     if (cut === 0) {
       if (buf.length < CHUNK) {
@@ -160,5 +170,6 @@ export async function* decodeText(chunks: AsyncIterable<Buffer>): AsyncGenerator
     carry = cut < buf.length ? Buffer.from(buf.subarray(cut)) : null;
     yield emit(buf.subarray(0, cut));
   }
+  if (open.length) carry = Buffer.concat([...(carry ? [carry] : []), ...open]);
   if (carry && carry.length > 0) yield emit(carry);
 }

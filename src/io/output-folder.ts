@@ -8,8 +8,8 @@
  * What counts as whose output is read from the files each command writes.
  */
 import { readdirSync, statSync } from 'node:fs';
-import { ENV_FAULTS, UsageError } from '../core/errors.js';
-import { makeFolder } from './files.js';
+import { EnvironmentError, UsageError } from '../core/errors.js';
+import { makeFolder } from './fs-faults.js';
 
 export type OutputKind = 'plan' | 'nbest' | 'shards' | 'model' | 'demo';
 
@@ -22,7 +22,7 @@ interface KindInfo {
 const KINDS: Record<OutputKind, KindInfo> = {
   plan: { command: 'sheaf split', marks: /^(folds\.json|heldout-\d+\.jsonl|train-\d+\.jsonl)(\.tmp)?$/ },
   nbest: { command: 'sheaf jackknife', marks: /^(jackknife\.json(\.tmp)?|models|logs)$/ },
-  shards: { command: 'sheaf prepare', marks: /^(manifest\.json|journal\.jsonl|shard-\d{5}\.(counts\.|part\.)?msgpack(\.gz)?|part\.json|rejects\.positions|part-keys\.jsonl)(\.tmp)?$/ },
+  shards: { command: 'sheaf prepare', marks: /^(manifest\.json|journal\.jsonl|shard-\d{5}\.(counts\.|part\.)?msgpack(\.gz)?|part\.json|rejects\.positions|part-keys\.jsonl|\.gold-spill)(\.tmp)?$/ },
   model: { command: 'sheaf train', marks: /^(model\.json|weights\.msgpack)(\.tmp)?$/ },
   demo: { command: 'sheaf demo', marks: /^(plan|nbest|train-shards|dev-shards|test-shards|model)$/ },
 };
@@ -53,8 +53,8 @@ export function claimOutputFolder(dir: string, kind: OutputKind, o: { force?: bo
     try {
       makeFolder(dir);
     } catch (e) {
-      const code = (e as NodeJS.ErrnoException).code ?? '';
-      throw new UsageError(`cannot make the output folder \`${dir}\` (given to \`${option}\`): ${code}${ENV_FAULTS[code] ? ` (${ENV_FAULTS[code]})` : ''}; choose a folder you can write to`, { cause: e });
+      if (e instanceof EnvironmentError) throw e;
+      throw new UsageError(`cannot make the output folder \`${dir}\` (given to \`${option}\`): ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}; choose a folder you can write to`, { cause: e });
     }
     return { fresh: true };
   }

@@ -52,8 +52,18 @@ export async function* readNbest(file: string, options: ReadNbestOptions = {}): 
     yield* bytes;
   }
   if (head[k] === 0x5b /* [ */) {
-    yield* readArray(file, all(), max);
-    return;
+    // A JSON Lines dump may also start with `[` (a bad first record): peek at its first lines to tell.
+    let peeked = firstChunks.reduce((a, c) => a + c.length, 0);
+    while (peeked < PEEK_LIMIT && newlines(firstChunks) < 3) {
+      const next = await bytes.next();
+      if (next.done) break;
+      firstChunks.push(next.value);
+      peeked += next.value.length;
+    }
+    if (!looksLikeJsonLines(Buffer.concat(firstChunks))) {
+      yield* readArray(file, all(), max);
+      return;
+    }
   }
   let index = 0;
   let lastLine = 0;
@@ -71,6 +81,50 @@ export async function* readNbest(file: string, options: ReadNbestOptions = {}): 
     }
     throw e;
   }
+}
+
+/** Bytes peeked at most to tell a JSON array from JSON Lines whose first line starts with `[`. */
+const PEEK_LIMIT = 8 << 20;
+
+function newlines(chunks: Buffer[]): number {
+  let n = 0;
+  for (const c of chunks) for (let i = c.indexOf(10); i >= 0; i = c.indexOf(10, i + 1)) n++;
+  return n;
+}
+
+const parses = (text: string): { ok: boolean; value?: unknown } => {
+  try {
+    return { ok: true, value: JSON.parse(text) };
+  } catch {
+    return { ok: false };
+  }
+};
+
+/**
+ * Whether text that starts with `[` is JSON Lines rather than one JSON
+ * array: its first line is a whole JSON value and more lines follow, or its
+ * first line is a broken one (not a lone `[`) and its second line is a whole
+ * JSON object. An array laid out over lines never has a first line that
+ * parses alone with more after it, nor a later element line that parses
+ * alone (commas separate elements).
+ */
+export function looksLikeJsonLines(bytes: Buffer): boolean {
+  let start = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
+  const lines: string[] = [];
+  while (lines.length < 2) {
+    const e = bytes.indexOf(10, start);
+    if (e < 0) break;
+    const line = bytes.toString('utf8', start, e).trim();
+    if (line) lines.push(line);
+    start = e + 1;
+  }
+  if (lines.length === 0) return false;
+  const rest = bytes.toString('utf8', start).trim();
+  const first = parses(lines[0]);
+  if (first.ok) return lines.length > 1 || rest.length > 0;
+  if (lines[0] === '[' || lines.length < 2) return false;
+  const second = parses(lines[1]);
+  return second.ok && second.value !== null && typeof second.value === 'object' && !Array.isArray(second.value);
 }
 
 function parseLine(text: string, file: string, line: number, index: number, max: number): NbestItem {

@@ -5,13 +5,13 @@
  * (formats/shard-record.ts). A shard is never loaded whole.
  */
 import { readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
 import { parseManifest, type ShardManifest } from '../formats/manifest.js';
 import { MsgpackError, MsgpackReader, type Decoded } from '../formats/msgpack.js';
 import { rankingList, RankingListDecoder, toShardSentence } from '../formats/shard-record.js';
 import type { RankingList, ShardSentence } from '../records.js';
 import { readBytes } from './open-input.js';
+import { fileInside } from './files.js';
 
 export const MANIFEST = 'manifest.json';
 
@@ -35,7 +35,7 @@ export async function* readRankingLists(file: string): AsyncGenerator<RankingLis
 
 /** Every list of a shard directory as flat ranking lists, shard by shard. */
 export async function* readRankingListDir(dir: string, manifest: ShardManifest = readManifest(dir)): AsyncGenerator<RankingList> {
-  for (const s of manifest.shards) yield* readRankingLists(join(dir, s.file));
+  for (const s of manifest.shards) yield* readRankingLists(fileInside(dir, s.file));
 }
 
 async function* decodeShard<T>(file: string, convert: (raw: Decoded) => T, fast?: (bytes: Uint8Array, at: number) => { value: T; end: number } | null): AsyncGenerator<T> {
@@ -98,8 +98,9 @@ async function* decodeShard<T>(file: string, convert: (raw: Decoded) => T, fast?
 export function readManifest(dir: string): ShardManifest {
   let text: string;
   try {
-    text = readFileSync(join(dir, MANIFEST), 'utf8');
+    text = readFileSync(fileInside(dir, MANIFEST), 'utf8');
   } catch (e) {
+    if (e instanceof UsageError) throw e;
     throw new UsageError(`\`${dir}\` is not a complete shard directory (no readable manifest.json; run \`sheaf prepare\` to make one)`, { cause: e });
   }
   return parseManifest(text, dir);
@@ -107,5 +108,5 @@ export function readManifest(dir: string): ShardManifest {
 
 /** Every sentence of a shard directory, shard by shard. */
 export async function* readShardDir(dir: string, manifest: ShardManifest = readManifest(dir)): AsyncGenerator<ShardSentence> {
-  for (const s of manifest.shards) yield* readShard(join(dir, s.file));
+  for (const s of manifest.shards) yield* readShard(fileInside(dir, s.file));
 }

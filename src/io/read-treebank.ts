@@ -9,6 +9,7 @@ import type { Vocabulary } from '../core/interner.js';
 import { checkTree, parseTree } from '../core/read-brackets.js';
 import { BracketSplitter, isSplitError, type SplitItem } from '../core/split-brackets.js';
 import { TreeBuilder } from '../core/tree.js';
+import { notWellFormed } from '../core/well-formed.js';
 import type { TreeRecord, TreeTextRecord } from '../records.js';
 
 export type { TreeRecord, TreeTextRecord };
@@ -60,7 +61,7 @@ async function peekFormat(chunks: AsyncIterable<Buffer>): Promise<{ format: 'bra
 
 export async function* readTreebank(file: string, options: ReadTreebankOptions): AsyncGenerator<TreeRecord> {
   for await (const r of readTrees(file, options, (text, builder) => parseTree(text, options.vocab, { builder }))) {
-    yield { id: r.id, ordinal: r.ordinal, file: r.file, line: r.line, column: r.column, tree: r.value };
+    yield { id: r.id, ordinal: r.ordinal, file: r.file, line: r.line, column: r.column, byPosition: r.byPosition, tree: r.value };
   }
 }
 
@@ -73,7 +74,7 @@ export async function* readTreeTexts(file: string, options: ReadTreebankOptions)
     checkTree(text, options.vocab, builder);
     return text;
   })) {
-    yield { id: r.id, ordinal: r.ordinal, file: r.file, line: r.line, column: r.column, text: r.value };
+    yield { id: r.id, ordinal: r.ordinal, file: r.file, line: r.line, column: r.column, byPosition: r.byPosition, text: r.value };
   }
 }
 
@@ -83,6 +84,7 @@ interface Located<T> {
   file: string;
   line: number;
   column: number;
+  byPosition: boolean;
   value: T;
 }
 
@@ -146,7 +148,7 @@ async function* readTrees<T>(file: string, options: ReadTreebankOptions, make: (
       }
       try {
         const value = make(item.text, builder);
-        yield { id, ordinal, file, line: item.line, column: item.column, value };
+        yield { id, ordinal, file, line: item.line, column: item.column, byPosition: true, value };
       } catch (e) {
         if (!(e instanceof DataError)) throw e;
         const line = item.line + (e.line ?? 1) - 1;
@@ -198,8 +200,13 @@ function fromJsonLine<T>(text: string, line: number, ordinal: number, file: stri
     bad(new DataError('bad-field', 'expected `tree` to be a string holding one bracketed tree', { file, line, id }));
     return null;
   }
+  const notText = notWellFormed(id, '`id`') ?? notWellFormed(tree, '`tree`');
+  if (notText) {
+    bad(new DataError('bad-field', notText, { file, line, id }));
+    return null;
+  }
   try {
-    return { id, ordinal, file, line, column: 1, value: make(tree, builder) };
+    return { id, ordinal, file, line, column: 1, byPosition: rawId === undefined, value: make(tree, builder) };
   } catch (e) {
     if (!(e instanceof DataError)) throw e;
     bad(new DataError(e.code, `in the \`tree\` string at its line ${e.line}, column ${e.column}: ${e.reason}`, { file, line, id }));

@@ -1,6 +1,7 @@
 /**
  * `rejects.jsonl`: one line per refused input record (file, line, column,
- * id, code, reason), written as `rejects.jsonl.tmp` and renamed when the run
+ * id, code, reason) and per candidate dropped from a kept list (the same
+ * with `candidate`, its base rank), written as `rejects.jsonl.tmp` and renamed when the run
  * completes. Its length is journaled with every shard, so a resumed run cuts
  * it back to what matches the last complete shard.
  */
@@ -11,7 +12,10 @@ import type { RejectRecord } from '../records.js';
 export const REJECTS = 'rejects.jsonl';
 
 export function rejectLine(r: RejectRecord): string {
-  return JSON.stringify({ file: r.file, line: r.line, column: r.column, id: r.id, code: r.code, reason: r.reason }) + '\n';
+  const line = r.candidate === undefined
+    ? { file: r.file, line: r.line, column: r.column, id: r.id, code: r.code, reason: r.reason }
+    : { file: r.file, line: r.line, column: r.column, id: r.id, candidate: r.candidate, code: r.code, reason: r.reason };
+  return JSON.stringify(line) + '\n';
 }
 
 export class RejectsLog {

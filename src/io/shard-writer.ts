@@ -21,6 +21,8 @@ export interface EncodedSentence {
   bytes: Uint8Array;
   rawBytes: number;
   candidates: number;
+  /** Candidates dropped from this list (words differ from the gold's). */
+  dropped?: readonly unknown[];
   varying: Uint32Array;
   templateCounts: Uint32Array;
 }
@@ -72,6 +74,7 @@ export class ShardWriter {
     const st = this.state;
     st.written++;
     st.candidates += s.candidates;
+    st.candidatesDropped = (st.candidatesDropped ?? 0) + (s.dropped?.length ?? 0);
     if (s.candidates === 0) st.noCandidates++;
     st.consumed = consumed;
     countFold(st, fold, source);
@@ -103,6 +106,19 @@ export class ShardWriter {
     const all = Buffer.concat(this.pending, this.pendingBytes);
     let off = 0;
     while (off < all.length) off += writeSync(this.fd, all, off, all.length - off);
+    this.pending = [];
+    this.pendingBytes = 0;
+  }
+
+  /** After a failure: closes the open shard's temporary file without completing it. */
+  abort(): void {
+    if (this.fd < 0) return;
+    try {
+      closeSync(this.fd);
+    } catch {
+      // already unusable; the file is removed by the caller's cleanup
+    }
+    this.fd = -1;
     this.pending = [];
     this.pendingBytes = 0;
   }

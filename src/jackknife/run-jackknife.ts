@@ -33,6 +33,7 @@ import { heldoutName } from '../folds/run-split.js';
 import { externalParser, parseExternal, readExternalOutput, trainExternal, type ExternalParser } from './external.js';
 import type { ParseJob, ParseWorkerInit } from './parse-worker.js';
 import { normalisedTrees, sentencesOf, treebankDigest } from './treebank-parts.js';
+import { makeFolder } from '../io/fs-faults.js';
 
 export interface JackknifeOptions {
   plan: string;
@@ -113,8 +114,8 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
     names.set(n, `\`${f}\``);
   }
   claimOutputFolder(o.out, 'nbest', { force: o.force });
-  mkdirSync(join(o.out, 'models'), { recursive: true });
-  mkdirSync(join(o.out, 'logs'), { recursive: true });
+  makeFolder(join(o.out, 'models'));
+  makeFolder(join(o.out, 'logs'));
   const stateFile = join(o.out, STATE_FILE);
   const state: JackknifeState = existsSync(stateFile) ? parseJackknifeState(readFileSync(stateFile, 'utf8')) : emptyJackknifeState();
 

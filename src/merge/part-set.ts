@@ -52,7 +52,9 @@ export function loadPart(dir: string): PartFolder {
   info.sides.forEach((s, k) => {
     if (s.sentences !== manifest.shards[k].sentences) bad(`side file ${s.file} holds ${s.sentences} sentences, shard ${manifest.shards[k].file} ${manifest.shards[k].sentences}`);
   });
-  if (info.rejectPositions.count !== manifest.totals.rejected) bad(`${info.rejectPositions.count} reject position(s) for ${manifest.totals.rejected} rejected record(s)`);
+  // One position per rejects line: each rejected record, and each candidate dropped from a kept list.
+  const lines = manifest.totals.rejected + (manifest.totals.candidatesDropped ?? 0);
+  if (info.rejectPositions.count !== lines) bad(`${info.rejectPositions.count} reject position(s) for ${manifest.totals.rejected} rejected record(s) and ${manifest.totals.candidatesDropped ?? 0} dropped candidate(s)`);
   if ((info.keys === null) !== (manifest.names === null)) bad(`${manifest.names ? 'names are kept but no key list is' : 'a key list is kept without names'}`);
   const records = manifest.inputs.nbest.reduce((a, x) => a + x.records, 0);
   if (records !== info.read) bad(`the inputs hold ${records} records but ${PART_FILE} says ${info.read} were read`);

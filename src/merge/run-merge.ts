@@ -29,7 +29,7 @@ import type { RejectRecord } from '../records.js';
 import { clearPrepareOutput } from '../prepare/output-dir.js';
 import { mergeNames } from './merge-names.js';
 import { checkPartSet, loadPart } from './part-set.js';
-import { PartStream } from './part-stream.js';
+import { isDroppedLine, PartStream } from './part-stream.js';
 
 export interface MergeOptions {
   parts: string[];
@@ -108,14 +108,22 @@ export async function runMerge(o: MergeOptions): Promise<MergeSummary> {
     if (differ.length > 0) throw new UsageError(`the gold rejects of ${differ.map((s) => `\`${s.part.dir}\``).join(', ')} differ from those of \`${parts[0].dir}\`: the parts did not read the same gold treebank`);
     for (let p = 0; p < read; p++) {
       const s = streams[p % N];
-      const item = s.next();
+      let item = s.next();
+      // Candidates dropped from this position's list: their rejects lines first, as one machine writes them.
+      let dropped = 0;
+      while (item !== null && item.kind === 'reject' && item.pos === p && isDroppedLine(item.line)) {
+        rejects.write(asReject(item.line, s.part.dir));
+        dropped++;
+        item = s.next();
+      }
       if (item === null || item.pos !== p) {
         throw new UsageError(`\`${s.part.dir}\` (part ${s.part.info.part} of ${N}) ${item === null ? 'ends' : `gives input position ${item.pos}`} where position ${p} was expected: its files do not belong together; make this part again`);
       }
       if (item.kind === 'sentence') {
         const { side, bytes } = item;
-        writer.sentence({ bytes, rawBytes: side.rawBytes, candidates: side.candidates, varying: side.varying, templateCounts: side.templateCounts }, side.fold, side.source, p + 1);
+        writer.sentence({ bytes, rawBytes: side.rawBytes, candidates: side.candidates, varying: side.varying, templateCounts: side.templateCounts, dropped: new Array(dropped) }, side.fold, side.source, p + 1);
       } else {
+        if (dropped > 0) throw new UsageError(`\`${s.part.dir}\` (part ${s.part.info.part} of ${N}) drops candidates at input position ${p} but rejects its list: its files do not belong together; make this part again`);
         rejects.write(asReject(item.line, s.part.dir));
         writer.rejected(p + 1);
       }
@@ -155,8 +163,10 @@ export async function runMerge(o: MergeOptions): Promise<MergeSummary> {
     ...m0,
     folds: state.folds,
     shards: state.shards,
-    totals: { ...m0.totals, read, written: state.written, rejected: state.rejected, candidates: state.candidates, noCandidates: state.noCandidates },
-    rejects: { file: REJECTS, count: state.rejected + goldRejected },
+    totals: m0.totals.candidatesRead === undefined
+      ? { ...m0.totals, read, written: state.written, rejected: state.rejected, candidates: state.candidates, noCandidates: state.noCandidates }
+      : { ...m0.totals, read, written: state.written, rejected: state.rejected, candidatesRead: state.candidates + (state.candidatesDropped ?? 0), candidates: state.candidates, candidatesDropped: state.candidatesDropped ?? 0, noCandidates: state.noCandidates },
+    rejects: { file: REJECTS, count: state.rejected + goldRejected + (state.candidatesDropped ?? 0) },
     names,
   };
   writeFileAtomic(join(o.out, PIPELINE_FILES), filesBytes[0]);

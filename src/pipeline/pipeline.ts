@@ -15,6 +15,7 @@ import type { ParseOptions } from '../stages/parse-candidates.js';
 import type { ShardLimits } from '../stages/write-shards.js';
 import { STAGES } from './stages.js';
 import type { PipelineConfig, TemplateBlock } from '../records.js';
+import { show } from '../core/show.js';
 
 export const PIPELINE_FORMAT = 'sheaf-pipeline/1';
 
@@ -46,7 +47,7 @@ export function buildPipeline(raw: unknown, name: string, context: ConfigureCont
     }
   }
   if (raw.format !== PIPELINE_FORMAT) {
-    throw new UsageError(`${name}: expected \`format\` to be \`${PIPELINE_FORMAT}\`, got \`${JSON.stringify(raw.format)}\``);
+    throw new UsageError(`${name}: expected \`format\` to be \`${PIPELINE_FORMAT}\`, got \`${show(raw.format)}\``);
   }
   if (!Array.isArray(raw.stages) || raw.stages.length === 0) throw new UsageError(`${name}: expected \`stages\` to be a non-empty list of stage blocks`);
   const byId = new Map(STAGES.map((s) => [s.id, s]));

@@ -1,5 +1,5 @@
 /** The files a prepare run owns in its output folder. */
-import { readdirSync, unlinkSync } from 'node:fs';
+import { existsSync, readdirSync, rmSync, unlinkSync } from 'node:fs';
 import { join } from 'node:path';
 
 export const JOURNAL = 'journal.jsonl';
@@ -9,4 +9,26 @@ const OWNED = /^(shard-\d{5}\.(counts\.|part\.)?msgpack(\.gz)?|manifest\.json|re
 /** Removes every file a prepare run writes (a fresh start). */
 export function clearPrepareOutput(dir: string): void {
   for (const f of readdirSync(dir)) if (OWNED.test(f)) unlinkSync(join(dir, f));
+}
+
+/**
+ * After a failed run: removes the run's temporary files (a partial shard,
+ * the gold spill, half-written count, manifest or names files) so that a full
+ * disk does not stay full, and keeps what a resume needs — the completed
+ * shards, the journal, and the rejects log so far (only with a journal to
+ * resume from). Quiet when the folder is missing or unreadable.
+ */
+export function keepWhatResumeNeeds(dir: string): void {
+  let names: string[];
+  try {
+    names = readdirSync(dir);
+  } catch {
+    return;
+  }
+  const resumable = existsSync(join(dir, JOURNAL));
+  for (const f of names) {
+    if (!OWNED.test(f) || !f.endsWith('.tmp')) continue;
+    if (resumable && f === 'rejects.jsonl.tmp') continue;
+    rmSync(join(dir, f), { force: true });
+  }
 }

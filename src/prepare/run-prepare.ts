@@ -9,7 +9,7 @@
  * totals are checked to reconcile before the manifest is written.
  */
 import { createHash, type Hash } from 'node:crypto';
-import { appendFileSync, closeSync, existsSync, fstatSync, openSync, readFileSync, readSync, statSync } from 'node:fs';
+import { appendFileSync, closeSync, existsSync, fstatSync, openSync, readFileSync, readSync, realpathSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
@@ -37,7 +37,8 @@ import { HASH_RULE } from '../stages/hash-features.js';
 import { joinVerdict, type PlannedFold } from '../stages/align-gold.js';
 import { TOOL_VERSION } from '../version.js';
 import type { SentenceWorkerInit } from './sentence-worker.js';
-import { clearPrepareOutput, JOURNAL } from './output-dir.js';
+import { environmentError } from '../io/fs-faults.js';
+import { clearPrepareOutput, JOURNAL, keepWhatResumeNeeds } from './output-dir.js';
 import { parsePartSpec, PartOutput, samePart, type PartSpec } from './part-output.js';
 
 export interface PrepareOptions {
@@ -91,6 +92,21 @@ function inputInfo(path: string): InputInfo {
   return { path, bytes: s.size, mtimeMs: s.mtimeMs };
 }
 
+/** The same dump named twice (overlapping globs) would be read twice: refuse it before reading anything. */
+function refuseRepeatedDumps(paths: string[]): void {
+  const seen = new Map<string, string>();
+  for (const p of paths) {
+    const key = p === '-' ? '-' : realpathSync(p);
+    const first = seen.get(key);
+    if (first !== undefined) {
+      throw new UsageError(first === p
+        ? `\`${p}\` is named twice after \`--nbest\` (overlapping globs?); name each dump once`
+        : `\`${first}\` and \`${p}\` after \`--nbest\` are the same file (overlapping globs?); name each dump once`);
+    }
+    seen.set(key, p);
+  }
+}
+
 /** Where the plan puts each gold sentence. */
 function plannedFolds(plan: FoldPlan | null, gold: GoldIndex): Map<number, ModelIdentity | null> {
   const models = new Map<number, ModelIdentity | null>();
@@ -107,9 +123,19 @@ function plannedFolds(plan: FoldPlan | null, gold: GoldIndex): Map<number, Model
 
 type Item =
   | { kind: 'reject'; reject: RejectRecord; seq: number; bytesAt: number }
-  | { kind: 'job'; seq: number; id: string; file: string; line: number | null; fold: number | null; source: ModelIdentity | null; bytesAt: number };
+  | { kind: 'job'; seq: number; id: string; file: string; line: number | null; fold: number | null; source: ModelIdentity | null; bytesAt: number; goldAt: string };
 
 export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
+  try {
+    return await prepareOnce(o);
+  } catch (e) {
+    // A failed run keeps what a resume needs (completed shards, the journal, the rejects so far), nothing else.
+    if (!(e instanceof SimulatedStop)) keepWhatResumeNeeds(o.out);
+    throw environmentError(e, o.out, 'write', 'run the same command again: it resumes after the shards completed so far');
+  }
+}
+
+async function prepareOnce(o: PrepareOptions): Promise<PrepareSummary> {
   const started = Date.now();
   const workers = o.workers ?? availableParallelism();
   if (!Number.isInteger(workers) || workers < 0 || workers > 256) throw new UsageError(`expected \`--workers\` to be an integer from 0 to 256, got \`${o.workers}\``);
@@ -125,6 +151,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   const planned = o.plan ? loadFoldPlan(o.plan) : null;
   const plan = planned?.plan ?? null;
   const inputs = { gold: inputInfo(o.gold), nbest: o.nbest.map(inputInfo), plan: planned ? inputInfo(planned.file) : null };
+  refuseRepeatedDumps(o.nbest);
   const claim = claimOutputFolder(o.out, 'shards', { force: o.force });
   const usesStdin = fromStdin > 0;
   const progress = createProgress({ quiet: o.quiet ?? false, label: 'sheaf prepare', totalBytes: usesStdin ? null : inputs.nbest.reduce((a, i) => a + (i.bytes ?? 0), 0) });
@@ -205,11 +232,18 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
         part?.rejected(item.seq);
         writer.rejected(item.seq + 1);
       } else if (res && 'bytes' in res) {
+        // Candidates dropped from a kept list: one rejects line each (with --strict, the first stops the run).
+        for (const d of res.dropped) {
+          const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, candidate: d.rank, code: d.code, reason: d.reason + item.goldAt };
+          if (o.strict) strictStop(r);
+          rejects.write({ ...r, reason: `${d.reason}; dropped, the list is kept with its other candidates${item.goldAt}` });
+          part?.rejected(item.seq);
+        }
         part?.sentence(res, item.fold, item.source, item.seq);
         writer.sentence(res as EncodedSentence, item.fold, item.source, item.seq + 1);
         if (o.stopAfterShards !== undefined && state!.shards.length >= o.stopAfterShards) throw new SimulatedStop('stopped by the test hook');
       } else if (res) {
-        const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, code: res.code, reason: res.reason };
+        const r: RejectRecord = { file: item.file, line: item.line, column: null, id: item.id, code: res.code, reason: res.reason + item.goldAt };
         if (o.strict) strictStop(r);
         rejects.write(r);
         part?.rejected(item.seq);
@@ -225,7 +259,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     };
 
     for (const file of o.nbest) {
-      const tap = tapFor(`nbest:${file}`);
+      const tap = tapFor(`nbest:${perFile.length}`);
       const before = seq;
       for await (const item of readNbest(file, { maxCandidates: pipeline.maxCandidates, tap: (c) => { tap(c); bytesRead += c.length; } })) {
         // A part reads every record (ids and duplicates are judged over the whole input) but processes only its share.
@@ -248,10 +282,11 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
         const plannedFold: PlannedFold | undefined | null = plan ? (fold >= 0 ? { fold, model: models.get(fold) ?? null } : undefined) : null;
         const refusal = joinVerdict(rec.id, k >= 0, firstSight, plannedFold, rec.fold, rec.source);
         if (refusal) {
-          await addReject({ file, line, column: null, id: rec.id, code: refusal.code, reason: refusal.reason + where });
+          const positions = refusal.code === 'no-gold' && gold.byPosition ? ` (the ids of \`${o.gold}\` are tree positions; trees it refused are in the rejects)` : '';
+          await addReject({ file, line, column: null, id: rec.id, code: refusal.code, reason: refusal.reason + positions + where });
         } else {
           await batches.push(
-            { kind: 'job', seq, id: rec.id, file, line, fold: rec.fold, source: rec.source, bytesAt: bytesRead },
+            { kind: 'job', seq, id: rec.id, file, line, fold: rec.fold, source: rec.source, bytesAt: bytesRead, goldAt: gold.origin(k) },
             { pos: seq, id: rec.id, fold: rec.fold, gold: gold.tree(k), candidates: rec.candidates },
           );
         }
@@ -267,6 +302,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   } catch (e) {
     rejects.close();
     part?.close();
+    writer.abort();
     throw e;
   } finally {
     await pool?.close();
@@ -286,7 +322,9 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     read,
     written: state.written,
     rejected: state.rejected,
+    candidatesRead: state.candidates + (state.candidatesDropped ?? 0),
     candidates: state.candidates,
+    candidatesDropped: state.candidatesDropped ?? 0,
     noCandidates: state.noCandidates,
     goldTrees: gold!.size,
     goldRejected,
@@ -301,13 +339,13 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
     record: RECORD_LAYOUT,
     inputs: {
       gold: { path: o.gold, bytes: inputs.gold.bytes, sha256: digestOf(`gold:${o.gold}`) },
-      nbest: o.nbest.map((f, k) => ({ path: f, bytes: inputs.nbest[k].bytes, sha256: digestOf(`nbest:${f}`), records: perFile[k] })),
+      nbest: o.nbest.map((f, k) => ({ path: f, bytes: inputs.nbest[k].bytes, sha256: digestOf(`nbest:${k}`), records: perFile[k] })),
       plan: planned ? { path: planned.file, sha256: fileSha256(planned.file) } : null,
     },
     folds: state.folds,
     shards: state.shards,
     totals,
-    rejects: { file: REJECTS, count: state.rejected + goldRejected },
+    rejects: { file: REJECTS, count: state.rejected + goldRejected + totals.candidatesDropped },
     names: namesSummary,
   };
   part?.finish(seq, state, keys);
@@ -316,7 +354,7 @@ export async function runPrepare(o: PrepareOptions): Promise<PrepareSummary> {
   removeIfExists(join(o.out, JOURNAL));
   const summary: PrepareSummary = { out: o.out, upToDate: false, resumedShards, shards: state.shards.length, ...totals, seconds: (Date.now() - started) / 1000 };
   const n = (x: number) => x.toLocaleString('en-US');
-  progress.done(`sheaf prepare: read ${n(read)} n-best lists: wrote ${n(state.written)} (${n(state.candidates)} candidates) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
+  progress.done(`sheaf prepare: read ${n(read)} n-best lists: wrote ${n(state.written)} (${n(state.candidates)} candidates${totals.candidatesDropped ? `; ${n(totals.candidatesDropped)} dropped: words differ from the gold's` : ''}) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
   checkRejectRate(totals, maxRejectRate, o.out);
   return summary;
 }
@@ -384,7 +422,7 @@ function earlierOutput(o: PrepareOptions, pipeline: LoadedPipeline, inputs: { go
     }
     if ((m.inputs.plan?.sha256 ?? null) !== (planFile ? fileSha256(planFile) : null)) differences.push(m.inputs.plan ? (planFile ? 'another fold plan' : 'a fold plan then, none now') : 'no fold plan then, one now');
     if (!samePart(o.out, o.part)) differences.push(`${existsSync(join(o.out, PART_FILE)) ? 'another part' : 'a whole run'} then, ${partOf(o.part)} now`);
-    const complete = m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes);
+    const complete = m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes && statSync(join(o.out, s.counts), { throwIfNoEntry: false })?.isFile() === true);
     return { upToDate: differences.length === 0 && complete ? m : null, differences };
   }
   if (existsSync(join(o.out, JOURNAL))) {

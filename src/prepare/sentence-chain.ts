@@ -2,7 +2,9 @@
  * The per-sentence chain of `prepare`, in two parts:
  * - gold-free: parse candidates → extract + hash features (as differences
  *   from the reference candidate) — what re-ranking new lists also needs;
- * - scoring: parse the gold tree → PARSEVAL counts of every candidate;
+ * - scoring: parse the gold tree → PARSEVAL counts of every candidate
+ *   (a candidate whose words differ from the gold's is dropped and reported,
+ *   the others kept with their base ranks);
  * then encode (+ compress) the shard record. Pure apart from the pipeline it
  * is built from: no IO, no state across sentences except caches that do not
  * change the output.
@@ -16,7 +18,7 @@ import type { CandidateText, SentenceJob, SentenceResult } from '../records.js';
 import { encodeShard } from '../stages/encode-shard.js';
 import { extractFeatures } from '../stages/extract-features.js';
 import { parseCandidates, parseNormalised } from '../stages/parse-candidates.js';
-import { scoreCandidates } from '../stages/score-candidates.js';
+import { scoreOrDrop } from '../stages/score-candidates.js';
 
 /** parse → extract → hash, for one list: no gold needed. */
 export function createFeaturiser(pipeline: Pipeline) {
@@ -28,6 +30,11 @@ export function createFeaturiser(pipeline: Pipeline) {
       const trees = parse(candidates, vocab);
       const vectors = extractor.sentence(trees.map((tree, rank) => ({ tree, score: candidates[rank].score, rank })));
       return { trees, vectors };
+    },
+    parse,
+    /** Vectors of some of a list's trees; `ranks` are their base ranks (positions in the list). */
+    vectors(trees: readonly Tree[], candidates: readonly CandidateText[], ranks: readonly number[]): SentenceVectors {
+      return extractor.sentence(trees.map((tree, j) => ({ tree, score: candidates[ranks[j]].score, rank: ranks[j] })));
     },
   };
 }
@@ -45,15 +52,23 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
   let vocab = createVocabulary();
   let jobs = 0;
   const featurise = createFeaturiser(pipeline);
-  const score = scoreCandidates(pipeline.scoring);
+  const score = scoreOrDrop(pipeline.scoring);
   const encode = encodeShard(pipeline.encode);
 
   const run = (job: SentenceJob): SentenceResult => {
     if (++jobs % 20000 === 0) vocab = createVocabulary();
     try {
       const gold = parseNormalised(job.gold, vocab, pipeline.parse, 'the gold tree');
-      const { trees, vectors } = featurise.run(job.candidates, vocab);
-      const { gold: goldCount, counts } = score(gold, trees);
+      // A candidate whose words differ from the gold's is dropped, not the list; ranks stay the base parser's.
+      const all = featurise.parse(job.candidates, vocab);
+      const { gold: goldCount, kept, counts, dropped } = score(gold, all);
+      // Every candidate differs from the gold: the list and the gold sentence disagree (a wrong join,
+      // a re-tokenised input), not one bad candidate. The list is refused, as before candidates were dropped.
+      if (all.length > 0 && kept.length === 0) {
+        return { pos: job.pos, code: 'yield-mismatch', reason: `the words of every candidate (${all.length}) differ from the gold tree's; the first: ${dropped[0].reason}` };
+      }
+      const trees = dropped.length === 0 ? all : kept.map((k) => all[k]);
+      const vectors = featurise.vectors(trees, job.candidates, kept);
       const { bytes, rawBytes } = encode({
         id: job.id,
         pos: job.pos,
@@ -63,15 +78,15 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
         flag: trees.length === 0 ? 'no-candidates' : null,
         ref: vectors.ref,
         cands: trees.map((_, k) => ({
-          score: job.candidates[k].score,
-          rank: k,
+          score: job.candidates[kept[k]].score,
+          rank: kept[k],
           matched: counts[k].matched,
           test: counts[k].test,
           idx: vectors.diffs[k].idx,
           val: vectors.diffs[k].val,
         })),
       });
-      return { pos: job.pos, bytes, rawBytes, candidates: trees.length, varying: vectors.varying, templateCounts: vectors.templateCounts };
+      return { pos: job.pos, bytes, rawBytes, candidates: trees.length, dropped, varying: vectors.varying, templateCounts: vectors.templateCounts };
     } catch (e) {
       if (e instanceof DataError) return { pos: job.pos, code: e.code, reason: e.reason };
       throw e;

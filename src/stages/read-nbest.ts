@@ -3,8 +3,10 @@
  * a reject naming what was expected. The bytes (files, gzip, stdin, JSON
  * Lines or a JSON array) are io/read-nbest.ts's business.
  */
+import { notWellFormed } from '../core/well-formed.js';
 import type { CandidateText, NbestRecord, RejectCode, RejectRecord } from '../records.js';
 import type { StageSpec } from './stage.js';
+import { show } from '../core/show.js';
 
 export const readNbestSpec: StageSpec = {
   id: 'read-nbest.v1',
@@ -37,12 +39,14 @@ export function checkNbestRecord(value: unknown, file: string, line: number, ind
   const r = value as Record<string, unknown>;
   const rawId = has(r, 'id') ? r.id : undefined;
   const id = typeof rawId === 'string' ? rawId : typeof rawId === 'number' && Number.isFinite(rawId) ? String(rawId) : null;
-  if (id === null) return reject(file, at, null, 'bad-field', `expected \`id\` to be a string or a number, got ${JSON.stringify(rawId) ?? 'nothing'}${where}`);
+  if (id === null) return reject(file, at, null, 'bad-field', `expected \`id\` to be a string or a number, got ${show(rawId)}${where}`);
+  const badId = notWellFormed(id, '`id`');
+  if (badId) return reject(file, at, id, 'bad-field', badId + where);
   let fold: number | null = null;
   const rawFold = has(r, 'fold') ? r.fold : null;
   if (rawFold !== undefined && rawFold !== null) {
     if (typeof rawFold !== 'number' || !Number.isSafeInteger(rawFold) || rawFold < 0) {
-      return reject(file, at, id, 'bad-field', `expected \`fold\` to be an integer from 0 to 2^53 − 1, or null, got ${JSON.stringify(rawFold)}${where}`);
+      return reject(file, at, id, 'bad-field', `expected \`fold\` to be an integer from 0 to 2^53 − 1, or null, got ${show(rawFold)}${where}`);
     }
     fold = rawFold;
   }
@@ -63,8 +67,14 @@ export function checkNbestRecord(value: unknown, file: string, line: number, ind
     const c = list[k] as Record<string, unknown> | null;
     if (c === null || typeof c !== 'object' || Array.isArray(c)) return reject(file, at, id, 'bad-field', `expected candidate ${k} to be an object {"tree", "score"}${where}`);
     if (typeof c.tree !== 'string') return reject(file, at, id, 'bad-field', `expected candidate ${k}'s \`tree\` to be a string${where}`);
+    const badTree = notWellFormed(c.tree, `candidate ${k}'s \`tree\``);
+    if (badTree) return reject(file, at, id, 'bad-field', badTree + where);
     if (typeof c.score !== 'number' || !Number.isFinite(c.score)) {
-      return reject(file, at, id, 'bad-field', `expected candidate ${k}'s \`score\` to be a finite number, got ${JSON.stringify(c.score)}${where}`);
+      return reject(file, at, id, 'bad-field', `expected candidate ${k}'s \`score\` to be a finite number, got ${show(c.score)}${where}`);
+    }
+    // Feature values are float32: a score beyond its range would become ±Infinity in the shards.
+    if (!Number.isFinite(Math.fround(c.score))) {
+      return reject(file, at, id, 'bad-field', `expected candidate ${k}'s \`score\` to be within the float32 range (magnitude below 3.4e38; feature values are float32), got ${c.score}${where}`);
     }
     candidates[k] = { tree: c.tree, score: c.score };
   }

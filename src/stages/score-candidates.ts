@@ -31,3 +31,34 @@ export function scoreCandidates(options: ScoringOptions) {
     return { gold: scorer.goldBrackets, counts };
   };
 }
+
+/** A candidate left out of its list: its base rank and why. */
+export interface DroppedCandidate {
+  rank: number;
+  code: 'yield-mismatch';
+  reason: string;
+}
+
+/**
+ * The same, keeping the list when some candidates' words differ from the
+ * gold's: those are dropped (with why), the others scored. `kept` holds the
+ * positions (base ranks) of the scored candidates, in order.
+ */
+export function scoreOrDrop(options: ScoringOptions) {
+  return (gold: Tree, candidates: readonly Tree[]): { gold: number; kept: number[]; counts: BracketCounts[]; dropped: DroppedCandidate[] } => {
+    const scorer = new SentenceScorer(gold, options);
+    const kept: number[] = [];
+    const counts: BracketCounts[] = [];
+    const dropped: DroppedCandidate[] = [];
+    candidates.forEach((c, k) => {
+      try {
+        counts.push(scorer.score(c));
+        kept.push(k);
+      } catch (e) {
+        if (!(e instanceof DataError) || e.code !== 'yield-mismatch') throw e;
+        dropped.push({ rank: k, code: e.code, reason: `candidate ${k}: ${e.reason}` });
+      }
+    });
+    return { gold: scorer.goldBrackets, kept, counts, dropped };
+  };
+}

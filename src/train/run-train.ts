@@ -8,7 +8,7 @@
  * picks the epoch kept.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { F1Table } from '../core/f1-table.js';
 import { UsageError } from '../core/errors.js';
@@ -17,7 +17,7 @@ import type { ShardManifest } from '../formats/manifest.js';
 import { MODEL_FORMAT, type EpochFigures, type ModelInfo } from '../formats/model.js';
 import { parseNames, formatNames } from '../formats/names-file.js';
 import { PIPELINE_FILES } from '../formats/pipeline-files.js';
-import { writeFileAtomic } from '../io/files.js';
+import { fileInside, writeFileAtomic } from '../io/files.js';
 import { claimOutputFolder } from '../io/output-folder.js';
 import { saveModel } from '../io/model-dir.js';
 import { readManifest, readRankingListDir } from '../io/read-shards.js';
@@ -27,6 +27,7 @@ import { minimize } from './lbfgs.js';
 import { LoglinearObjective } from './loglinear.js';
 import { AveragedPerceptron } from './perceptron.js';
 import { pick, scores, type RankingList } from './ranking.js';
+import { makeFolder } from '../io/fs-faults.js';
 
 export interface TrainOptions {
   shards: string;
@@ -82,7 +83,7 @@ export function shardsDigest(m: ShardManifest): string {
 export function cutoffMask(dir: string, m: ShardManifest, cutoff: number): { mask: Uint8Array; kept: number } {
   const counts = new Uint32Array(2 ** m.hashing.bits);
   for (const sh of m.shards) {
-    const c = decodeCounts(readFileSync(join(dir, sh.counts)), join(dir, sh.counts));
+    const c = decodeCounts(readFileSync(fileInside(dir, sh.counts)), join(dir, sh.counts));
     for (let k = 0; k < c.idx.length; k++) counts[c.idx[k]] += c.count[k];
   }
   const mask = new Uint8Array(counts.length);
@@ -222,13 +223,13 @@ export async function runTrain(o: TrainOptions, log: (line: string) => void = ()
     bestEpoch,
     names: null,
   };
-  const copies = [{ from: join(o.shards, m.pipeline.files ?? PIPELINE_FILES), to: PIPELINE_FILES }].filter((c) => existsSync(c.from));
-  mkdirSync(o.out, { recursive: true });
+  const copies = [{ from: fileInside(o.shards, m.pipeline.files ?? PIPELINE_FILES), to: PIPELINE_FILES }].filter((c) => existsSync(c.from));
+  makeFolder(o.out);
   // A folder with a model.json holds a whole model: drop the old one before writing the new.
   rmSync(join(o.out, 'model.json'), { force: true });
   if (m.names) {
     // The names of the buckets the model weighs.
-    const names = parseNames(readFileSync(join(o.shards, m.names.file), 'utf8'), join(o.shards, m.names.file));
+    const names = parseNames(readFileSync(fileInside(o.shards, m.names.file), 'utf8'), join(o.shards, m.names.file));
     names.names = names.names.filter(([b]) => weights[b] !== 0);
     writeFileAtomic(join(o.out, 'names.json'), formatNames(names));
     info.names = 'names.json';

@@ -1,0 +1,185 @@
+/**
+ * Faults of the environment, through the built CLI: an output path that is
+ * a file, an unwritable folder (run as an unprivileged user: root passes
+ * every permission check), a full disk (a small tmpfs; /dev/full for one
+ * stream), a read-only file system. Each must end with status 1 and a
+ * sentence naming the path and what to do, never "internal error"; a failed
+ * `prepare` keeps what a resume needs (completed shards, the journal, the
+ * rejects so far) and nothing else, and the resumed run gives the bytes of
+ * an undisturbed one. Tests that need root (mount, setpriv) are skipped with
+ * the reason in their name when it is not available.
+ */
+import { spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { chmodSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { makeDemoData, type DemoData } from './helpers/make-demo-data.js';
+
+const root = fileURLToPath(new URL('..', import.meta.url));
+const BIN = join(root, 'bin/sheaf.js');
+const sheaf = (args: string[], as?: number) =>
+  as === undefined
+    ? spawnSync(process.execPath, [BIN, ...args], { encoding: 'utf8' })
+    : spawnSync('setpriv', [`--reuid=${as}`, `--regid=${as}`, '--clear-groups', process.execPath, BIN, ...args], { encoding: 'utf8' });
+const run = (cmd: string, args: string[]) => spawnSync(cmd, args, { encoding: 'utf8' });
+
+const dir = mkdtempSync(join(tmpdir(), 'sheaf-faults-'));
+// Readable by the unprivileged user too.
+chmodSync(dir, 0o755);
+const mounts: string[] = [];
+afterAll(() => {
+  for (const m of mounts.reverse()) run('umount', [m]);
+  rmSync(dir, { recursive: true, force: true });
+});
+
+/** Why mounting a tmpfs is not possible here, or null. */
+function mountUnavailable(): string | null {
+  if (process.getuid?.() !== 0) return 'not running as root';
+  const probe = join(dir, 'probe');
+  mkdirSync(probe);
+  const r = run('mount', ['-t', 'tmpfs', '-o', 'size=64k', 'tmpfs', probe]);
+  if (r.status !== 0) return `mount refused: ${(r.stderr || r.error?.message || '').trim()}`;
+  run('umount', [probe]);
+  return null;
+}
+/** Why running as another user is not possible here, or null. */
+function setprivUnavailable(): string | null {
+  if (process.getuid?.() !== 0) return 'not running as root';
+  const r = run('setpriv', ['--reuid=65534', '--regid=65534', '--clear-groups', process.execPath, '-e', `require('fs').accessSync(${JSON.stringify(BIN)})`]);
+  return r.status === 0 ? null : `setpriv cannot run node as user 65534: ${(r.stderr || r.error?.message || '').trim().split('\n')[0]}`;
+}
+const noMount = mountUnavailable();
+const noSetpriv = setprivUnavailable();
+const skipped = (why: string | null) => (why ? ` — skipped: ${why}` : '');
+
+function mountTmpfs(path: string, options: string): void {
+  mkdirSync(path, { recursive: true });
+  const r = run('mount', ['-t', 'tmpfs', '-o', options, 'tmpfs', path]);
+  if (r.status !== 0) throw new Error(`mount ${options} ${path}: ${r.stderr}`);
+  mounts.push(path);
+}
+
+let data: DemoData;
+let gold: string;
+let pipeline: string;
+beforeAll(async () => {
+  const trees = readFileSync(join(root, 'demo-corpus/huts-train.trees'), 'utf8').split(/\n(?=\( \()/).slice(0, 150);
+  gold = join(dir, 'gold.trees');
+  writeFileSync(gold, trees.join('\n') + '\n');
+  data = await makeDemoData(gold, join(dir, 'in'), { folds: 3, nbest: 10 });
+  const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
+  p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 10;
+  p.stages.find((s: any) => s.stage === 'extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
+  p.stages.find((s: any) => s.stage === 'hash-features.v2').names = 0;
+  pipeline = join(dir, 'pipeline.json');
+  writeFileSync(pipeline, JSON.stringify(p));
+  for (const f of [gold, pipeline, ...data.dumps]) chmodSync(f, 0o644);
+  chmodSync(join(dir, 'in'), 0o755);
+});
+
+const prepareArgs = (out: string) => ['prepare', '--gold', gold, '--nbest', ...data.dumps, '--pipeline', pipeline, '-o', out, '--quiet', '--workers', '1'];
+const sha = (f: string) => createHash('sha256').update(readFileSync(f)).digest('hex');
+const tree = (d: string) => Object.fromEntries(readdirSync(d).sort().map((f) => [f, sha(join(d, f))]));
+
+function expectPlainFailure(r: ReturnType<typeof sheaf>, path: string, what: RegExp) {
+  expect(r.status, r.stderr).toBe(1);
+  expect(r.stderr).not.toContain('internal error');
+  expect(r.stderr).toContain(`\`${path}`);
+  expect(r.stderr).toMatch(what);
+  expect(r.stderr.trim().split('\n')).toHaveLength(1);
+}
+
+describe('faults: output paths that cannot be folders', () => {
+  it('`-o` naming a file', () => {
+    const file = join(dir, 'a-file');
+    writeFileSync(file, 'ledger');
+    expectPlainFailure(sheaf(prepareArgs(file)), file, /is a file; expected a folder for sheaf prepare to write its files in/);
+    expect(readFileSync(file, 'utf8')).toBe('ledger');
+    expectPlainFailure(sheaf(prepareArgs(join(file, 'out'))), join(file, 'out'), /a part of that path is a file, not a folder/);
+  });
+
+  it('a full stdout (/dev/full) for export and inspect', () => {
+    if (!existsSync('/dev/full')) return expect.fail('/dev/full is missing on this system');
+    const out = join(dir, 'ok');
+    expect(sheaf(prepareArgs(out)).status).toBe(0);
+    for (const args of [['export', out, '--format', 'svmlight'], ['inspect', out, '--jsonl']]) {
+      const r = spawnSync('sh', ['-c', `"${process.execPath}" "${BIN}" ${args.map((a) => `"${a}"`).join(' ')} > /dev/full`], { encoding: 'utf8' });
+      expectPlainFailure(r, 'stdout', /the disk is full; free some space \(ENOSPC\)/);
+    }
+  });
+});
+
+describe('faults: an unwritable folder', () => {
+  it.skipIf(noSetpriv !== null)(`a new output folder under a folder the user may not write, and an existing one${skipped(noSetpriv)}`, () => {
+    const locked = join(dir, 'locked');
+    mkdirSync(locked);
+    chmodSync(locked, 0o555);
+    expectPlainFailure(sheaf(prepareArgs(join(locked, 'out')), 65534), join(locked, 'out'), /permission denied; make it writable/);
+    expectPlainFailure(sheaf(prepareArgs(locked), 65534), locked, /permission denied; make it writable/);
+    expect(readdirSync(locked)).toEqual([]);
+    // train's model folder too.
+    const shards = join(dir, 'shards-for-train');
+    expect(sheaf(prepareArgs(shards)).status).toBe(0);
+    chmodSync(shards, 0o755);
+    for (const f of readdirSync(shards)) chmodSync(join(shards, f), 0o644);
+    expectPlainFailure(sheaf(['train', shards, '-o', join(locked, 'model'), '--quiet'], 65534), join(locked, 'model'), /permission denied/);
+  });
+});
+
+describe('faults: a full disk', () => {
+  it.skipIf(noMount !== null)(`prepare on a small tmpfs stops with status 1, keeps completed shards, the journal and the rejects, removes the rest; the resumed run gives the same bytes${skipped(noMount)}`, () => {
+    const reference = join(dir, 'reference');
+    expect(sheaf(prepareArgs(reference)).status).toBe(0);
+    const shards = readdirSync(reference).filter((f) => /^shard-\d+\.msgpack\.gz$/.test(f));
+    expect(shards.length).toBeGreaterThanOrEqual(10);
+    // Room for the gold spill and about half of the shards (tmpfs counts whole 4 KiB pages per file).
+    const page = (n: number) => Math.ceil(n / 4096) * 4096;
+    const half = shards.slice(0, Math.floor(shards.length / 2)).reduce((a, f) => a + page(statSync(join(reference, f)).size) + 4096, 0);
+    const size = page(statSync(gold).size) + half + 8 * 4096;
+    const small = join(dir, 'small');
+    mountTmpfs(small, `size=${size}`);
+    const out = join(small, 'out');
+    const r = sheaf(prepareArgs(out));
+    expectPlainFailure(r, small, /the disk is full; free some space and run the same command again: it resumes after the shards completed so far \(ENOSPC\)/);
+    // Left: completed shards (as the journal lists them, bytes intact), their count files, the journal, the rejects so far.
+    const left = readdirSync(out).sort();
+    const journal = readFileSync(join(out, 'journal.jsonl'), 'utf8').trim().split('\n').map((l) => { try { return JSON.parse(l); } catch { return null; } }).filter(Boolean);
+    const done = journal[journal.length - 1].state.shards as { file: string; sha256: string; counts: string }[];
+    expect(done.length).toBeGreaterThanOrEqual(1);
+    for (const s of done) expect(`sha256:${sha(join(out, s.file))}`).toBe(s.sha256);
+    for (const f of left) expect(/^(shard-\d{5}\.(counts\.)?msgpack(\.gz)?|journal\.jsonl|rejects\.jsonl\.tmp)$/.test(f), f).toBe(true);
+    expect(left).not.toContain('manifest.json');
+    // More room, the same command: it resumes and ends with the reference's bytes.
+    expect(run('mount', ['-o', 'remount,size=16m', small]).status).toBe(0);
+    const again = sheaf([...prepareArgs(out).filter((a) => a !== '--quiet'), '--json']);
+    expect(again.status, again.stderr).toBe(0);
+    expect(JSON.parse(again.stdout).resumedShards).toBeGreaterThanOrEqual(1);
+    const a = tree(out);
+    const b = tree(reference);
+    delete a['manifest.json'];
+    delete b['manifest.json'];
+    expect(a).toEqual(b);
+    const m = (d: string) => { const x = JSON.parse(readFileSync(join(d, 'manifest.json'), 'utf8')); return { shards: x.shards, totals: x.totals }; };
+    expect(m(out)).toEqual(m(reference));
+  });
+});
+
+describe('faults: a read-only file system', () => {
+  it.skipIf(noMount !== null)(`prepare and train cannot write there: status 1 naming the path; a complete shard directory there is read, and is up to date${skipped(noMount)}`, () => {
+    const ro = join(dir, 'ro');
+    mountTmpfs(ro, 'size=8m');
+    const shards = join(ro, 'shards');
+    expect(sheaf(prepareArgs(shards)).status).toBe(0);
+    expect(run('mount', ['-o', 'remount,ro', ro]).status).toBe(0);
+    expectPlainFailure(sheaf(prepareArgs(join(ro, 'other'))), join(ro, 'other'), /read-only file system; choose a place on a writable one \(EROFS\)/);
+    expectPlainFailure(sheaf(['train', shards, '-o', join(ro, 'model'), '--quiet']), join(ro, 'model'), /read-only file system/);
+    // Reading is fine: a re-run finds the output up to date, train writes elsewhere.
+    const again = sheaf(prepareArgs(shards));
+    expect(again.status, again.stderr).toBe(0);
+    const t = sheaf(['train', shards, '-o', join(dir, 'model-from-ro'), '--quiet', '--cutoff', '1']);
+    expect(t.status, t.stderr).toBe(0);
+  });
+});
