@@ -1,15 +1,9 @@
 // Seeded generator of random parse trees of about `words` words, for
 // benchmarks (not for tests: tests check against outside references).
-/** A seeded generator of numbers in [0, 1) (mulberry32). */
-export function rng(seed) {
-  let s = seed | 0;
-  return () => {
-    s = (s + 0x6d2b79f5) | 0;
-    let t = Math.imul(s ^ (s >>> 15), 1 | s);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { seededRandom } from '../../dist/core/random.js';
+
+/** A seeded generator of numbers in [0, 1) (mulberry32, sheaf's own). */
+export const rng = seededRandom;
 
 const PHRASES = ['NP', 'VP', 'PP', 'S', 'SBAR', 'ADJP', 'ADVP', 'NP', 'NP', 'VP', 'PP'];
 const TAGS = ['DT', 'NN', 'NNS', 'VBD', 'IN', 'JJ', 'RB', 'CC', 'CD', 'PRP', 'TO', 'VB', 'NNP', 'MD'];

@@ -9,6 +9,7 @@
 import type { Vocabulary } from '../../src/core/interner.js';
 import { parseTree } from '../../src/core/read-brackets.js';
 import type { Tree } from '../../src/core/tree.js';
+import { seededRandom } from '../../src/core/random.js';
 
 type Node = { label: string; kids: (Node | string)[] };
 
@@ -26,15 +27,7 @@ function write(n: Node | string): string {
 const isPhrase = (n: Node | string): n is Node => typeof n !== 'string' && n.kids.some((k) => typeof k !== 'string');
 const LABELS = ['NP', 'VP', 'PP', 'S', 'SBAR', 'ADJP', 'ADVP'];
 
-export function seededRandom(seed: number): () => number {
-  let s = seed | 0;
-  return () => {
-    s = (s + 0x6d2b79f5) | 0;
-    let t = Math.imul(s ^ (s >>> 15), 1 | s);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export { seededRandom };
 
 function phrases(n: Node, out: { node: Node; parent: Node | null }[] = [], parent: Node | null = null) {
   if (!isPhrase(n)) return out;
