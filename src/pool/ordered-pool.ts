@@ -42,6 +42,7 @@ type FromWorker<R> = { batch: number; results: R[] } | { batch: number; error: s
 export class OrderedPool<J, R> {
   private readonly workers: Worker[] = [];
   private readonly load: number[] = [];
+  private readonly exited: boolean[] = [];
   private readonly pending = new Map<number, Pending<R>>();
   private readonly collectors: ((v: unknown) => void)[] = [];
   private nextBatch = 0;
@@ -66,10 +67,12 @@ export class OrderedPool<J, R> {
       w.on('message', (msg: FromWorker<R>) => pool.receive(k, msg));
       w.on('error', (e) => pool.fail(e));
       w.on('exit', (code) => {
+        pool.exited[k] = true;
         if (code !== 0 && !pool.closing) pool.fail(new Error(`a worker thread stopped with exit code ${code}`));
       });
       pool.workers.push(w);
       pool.load.push(0);
+      pool.exited.push(false);
     }
     return pool;
   }
@@ -132,9 +135,32 @@ export class OrderedPool<J, R> {
     return out;
   }
 
-  async close(): Promise<void> {
+  /**
+   * Stops the workers. Each is asked to stop after the batches already sent
+   * to it (they are queued before the request) and ends of its own accord;
+   * only one that has not ended after `graceMs` is terminated. Terminating a
+   * thread in the middle of a batch can stop it between creating a zlib
+   * handle and initialising it (the shard encoder gzips in the workers), and
+   * Node 20 then aborts the whole process with a native assertion while it
+   * cleans the thread up ("close before init"), seen on a full disk.
+   */
+  async close(graceMs = 30_000): Promise<void> {
     this.closing = true;
-    await Promise.all(this.workers.map((w) => w.terminate()));
+    await Promise.all(
+      this.workers.map(
+        (w, k) =>
+          new Promise<void>((resolve) => {
+            if (this.exited[k]) return resolve();
+            const timer = setTimeout(() => void w.terminate(), graceMs);
+            timer.unref();
+            w.once('exit', () => {
+              clearTimeout(timer);
+              resolve();
+            });
+            w.postMessage({ stop: true });
+          }),
+      ),
+    );
   }
 }
 

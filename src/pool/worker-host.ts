@@ -10,7 +10,12 @@ const { module, init } = workerData as { module: string; init: unknown };
 const mod = (await import(module)) as { createJobHandler(init: unknown): JobHandler<unknown, unknown> };
 const handler = mod.createJobHandler(init);
 
-parentPort!.on('message', (msg: { batch: number; jobs: unknown[] } | { collect: true }) => {
+parentPort!.on('message', (msg: { batch: number; jobs: unknown[] } | { collect: true } | { stop: true }) => {
+  if ('stop' in msg) {
+    // Nothing left to wait for: the thread ends once this handler returns.
+    parentPort!.close();
+    return;
+  }
   if ('collect' in msg) {
     parentPort!.postMessage({ collected: handler.collect?.() });
     return;
