@@ -31,15 +31,19 @@
  * its last bit, through summation order.
  *
  * Hot paths are typed arrays reused across lists; the vectors returned are
- * views into buffers that the next call overwrites.
+ * views into buffers that the next call overwrites. Every node feature of
+ * the list is computed first; then the buckets the list touches are
+ * numbered in ascending order (columns.ts), and sums, differences and counts
+ * run over dense arrays indexed by column: a candidate's difference is
+ * summed in place and read back in column (= bucket) order from a bit set
+ * of the columns it touched, with no merge and no sort.
  */
 import { FeatureSink } from '../core/feature-sink.js';
 import { NameBook } from '../core/name-book.js';
-import { SparseAccumulator } from '../core/sparse-accumulator.js';
 import type { SparseVector } from '../core/sparse-vector.js';
 import type { Tree } from '../core/tree.js';
-import { ListMerger, sortAndSum, UnionCounter } from './merge-lists.js';
 import { headChildNode } from '../core/find-heads.js';
+import { ColumnIndex } from './columns.js';
 import { KINDS, kindOf, NodeIdentifier } from './subtree-ids.js';
 import type { CandidateView, ConfiguredTemplate } from './template.js';
 
@@ -95,6 +99,7 @@ export class VectorExtractor {
   readonly names: NameBook | null;
   /** Local node templates, grouped by the identity kind their reach needs. */
   private readonly groups: Group[] = [];
+  private readonly groupKinds: number[] = [];
   private readonly wanted: boolean[] = new Array(KINDS).fill(false);
   private readonly context: { t: ConfiguredTemplate; index: number }[] = [];
   private readonly whole: { t: ConfiguredTemplate; index: number }[] = [];
@@ -102,54 +107,62 @@ export class VectorExtractor {
   private readonly nTemplates: number;
   private readonly identifier: NodeIdentifier;
 
-  // Node identities of every candidate, per group: nodeIds[g][c].
-  private nodeIds: Int32Array[][] = [];
-  private kindBuffers: Int32Array[] = [];
+  // Node identities of the list per kind: candidate c's node i at kindIds[kind][nodeFrom[c] + i].
+  private kindIds: Int32Array[] = [];
+  private nodeFrom = new Int32Array(64);
   // Per identity (reset per list).
   private owner = new Int32Array(1024);
   private ownerNode = new Int32Array(1024);
   private ownerGroup = new Int32Array(1024);
+  private holders = new Int32Array(1024);
   private featFrom = new Int32Array(1024);
   private featTo = new Int32Array(1024);
   private inRef = new Uint8Array(1024);
   private stamp = new Int32Array(1024);
-  private consensusIds: number[] = [];
-  // Node features of computed identities: one pool per list.
+  private consensusIds = new Int32Array(256);
+  private nConsensus = 0;
+  // Node features of every identity of the list: bucket, column, value, template.
   private fb = new Int32Array(8192);
+  private fc = new Int32Array(8192);
   private fv = new Float64Array(8192);
   private ft = new Uint8Array(8192);
   private fn = 0;
-  // The same, per identity sorted by bucket with equal buckets summed (what differences merge).
-  private sb = new Int32Array(8192);
-  private sv = new Float64Array(8192);
-  private sn = 0;
-  private sFrom = new Int32Array(1024);
-  private sTo = new Int32Array(1024);
   /** True when some node feature of this list has a value that is not an integer. */
   private nodeReal = false;
-  private readonly merger = new ListMerger();
-  // Whole-tree (and non-local) features of each candidate: one pool per list.
+  // Whole-tree (and non-local) features of each candidate, the same way.
   private tb = new Int32Array(1024);
+  private tc = new Int32Array(1024);
   private tv = new Float64Array(1024);
   private tt = new Uint8Array(1024);
   private tn = 0;
   private tFrom = new Int32Array(64);
-  // Differences from the first candidate, then from the reference.
-  private dIdx = new Uint32Array(8192);
+  // Per column (reset per list): the consensus's node sum, a candidate's node difference and
+  // whole-tree sum, which candidate last touched it with whole-tree features, and the touched set (bits).
+  private readonly columns = new ColumnIndex();
+  private nCols = 0;
+  private colR = new Float64Array(1024);
+  private colD = new Float64Array(1024);
+  private colT = new Float64Array(1024);
+  private colTree = new Int32Array(1024);
+  private touched = new Int32Array(32);
+  // Per column, for the reference: how many differences hold it, vote state, templates fired.
+  private colCount = new Int32Array(1024);
+  private colVote = new Int32Array(1024);
+  private colValue = new Float64Array(1024);
+  private colAgree = new Int32Array(1024);
+  private colFlags = new Uint8Array(1024);
+  private colTemplates = new Int32Array(1024);
+  // Differences from the consensus (columns), then from the reference (buckets).
+  private dCol = new Int32Array(8192);
   private dVal = new Float64Array(8192);
   private oIdx = new Uint32Array(8192);
   private oVal = new Float64Array(8192);
+  private shiftCol = new Int32Array(64);
+  private shiftVal = new Float64Array(64);
+  private variesCol = new Int32Array(1024);
 
   /** Work done so far (for benchmarks): what the per-candidate cost follows. */
   readonly work = { lists: 0, candidates: 0, nodes: 0, identities: 0, computed: 0, replayed: 0, touched: 0, stored: 0 };
-
-  private readonly nRef = new SparseAccumulator();
-  private readonly tCand = new SparseAccumulator();
-  private readonly union = new UnionCounter();
-  private vBuf = new Uint32Array(1024);
-  private shiftIdx = new Uint32Array(64);
-  private shiftVal = new Float64Array(64);
-  private readonly fired = new SparseAccumulator();
 
   constructor(readonly options: ExtractorOptions) {
     if (options.templates.length > 31) throw new RangeError(`expected at most 31 templates, got ${options.templates.length}`);
@@ -170,10 +183,12 @@ export class VectorExtractor {
       if (!g) {
         g = { kind, templates: [] };
         this.groups.push(g);
+        this.groupKinds.push(kind);
       }
       g.templates.push({ t, index });
     });
     this.identifier = new NodeIdentifier(this.wanted, maxDepth);
+    for (let k = 0; k < KINDS; k++) this.kindIds.push(new Int32Array(1024));
     this.dropUniform = options.dropUniform ?? true;
     this.nTemplates = options.templates.length;
   }
@@ -184,15 +199,14 @@ export class VectorExtractor {
     const templateCounts = new Uint32Array(2 * this.nTemplates);
     if (m === 0) return { ref: null, diffs: [], varying: new Uint32Array(0), templateCounts };
     const views = this.identify(cands);
-    this.fn = 0;
-    this.sn = 0;
-    this.nodeReal = false;
+    this.nodeFeatures(views);
     this.tn = 0;
     this.tFrom = grown(this.tFrom, m + 1);
     for (let c = 0; c < m; c++) this.wholeTree(views[c], c);
     this.tFrom[m] = this.tn;
-    this.consensus(cands, views);
-    const from = this.differencesFromConsensus(cands, views);
+    this.numberColumns();
+    this.consensus(cands);
+    const from = this.differencesFromConsensus(cands);
     const { ref, diffs, varying } = this.fromReference(m, from);
     const w = this.work;
     w.lists++;
@@ -202,50 +216,50 @@ export class VectorExtractor {
     w.stored += ref.idx.length;
     for (const d of diffs) w.stored += d.idx.length;
     for (const c of cands) w.nodes += c.tree.size;
-    this.countTemplates(templateCounts, varying);
+    this.countTemplates(templateCounts);
     return { ref, diffs, varying, templateCounts };
   }
 
-  /** Views and node identities of every candidate; owners of each identity. */
+  /** Views and node identities of every candidate; owners and holders of each identity. */
   private identify(cands: readonly CandidateInput[]): CandidateView[] {
     const m = cands.length;
     const idf = this.identifier;
-    const ids = idf.ids;
     idf.reset(cands[0].tree.wordNodes.length);
-    const views: CandidateView[] = new Array(m);
-    let maxSize = 0;
-    for (const c of cands) maxSize = Math.max(maxSize, c.tree.size);
-    while (this.kindBuffers.length < KINDS) this.kindBuffers.push(new Int32Array(256));
-    for (let k = 0; k < KINDS; k++) this.kindBuffers[k] = grown(this.kindBuffers[k], maxSize);
-    const G = this.groups.length;
-    while (this.nodeIds.length < G) this.nodeIds.push([]);
+    this.nodeFrom = grown(this.nodeFrom, m + 1);
+    const nodeFrom = this.nodeFrom;
+    let total = 0;
     for (let c = 0; c < m; c++) {
-      const t = cands[c].tree;
-      views[c] = idf.identify(t, cands[c].score, cands[c].rank, this.kindBuffers, headChildNode);
-      for (let g = 0; g < G; g++) {
-        const list = this.nodeIds[g];
-        if (list.length <= c || list[c].length < t.size) list[c] = new Int32Array(Math.max(t.size, 64));
-        list[c].set(this.kindBuffers[this.groups[g].kind].subarray(0, t.size));
-      }
+      nodeFrom[c] = total;
+      total += cands[c].tree.size;
     }
-    const count = ids.count;
-    for (const name of ['owner', 'ownerNode', 'ownerGroup', 'featFrom', 'featTo', 'sFrom', 'sTo', 'stamp'] as const) this[name] = grown(this[name], count);
+    nodeFrom[m] = total;
+    const kindIds = this.kindIds;
+    for (const k of idf.kinds) kindIds[k] = grown(kindIds[k], total);
+    const views: CandidateView[] = new Array(m);
+    for (let c = 0; c < m; c++) views[c] = idf.identify(c, cands[c].tree, cands[c].score, cands[c].rank, kindIds, nodeFrom[c], headChildNode);
+    const count = idf.ids.count;
+    for (const name of ['owner', 'ownerNode', 'ownerGroup', 'holders', 'featFrom', 'featTo', 'stamp'] as const) this[name] = grown(this[name], count);
     this.inRef = grown(this.inRef, count);
-    this.owner.fill(-1, 0, count);
-    this.featFrom.fill(-1, 0, count);
+    const { owner, ownerNode, ownerGroup, holders } = this;
+    owner.fill(-1, 0, count);
+    holders.fill(0, 0, count);
     this.inRef.fill(0, 0, count);
-    this.stamp.fill(0, 0, count);
+    this.stamp.fill(-1, 0, count);
+    const G = this.groups.length;
     for (let c = 0; c < m; c++) {
-      const t = cands[c].tree;
+      const isWord = cands[c].tree.isWord;
+      const n = cands[c].tree.size;
+      const base = nodeFrom[c];
       for (let g = 0; g < G; g++) {
-        const own = this.nodeIds[g][c];
-        for (let i = 0; i < t.size; i++) {
-          if (t.isWord[i]) continue;
-          const id = own[i];
-          if (this.owner[id] < 0) {
-            this.owner[id] = c;
-            this.ownerNode[id] = i;
-            this.ownerGroup[id] = g;
+        const own = kindIds[this.groupKinds[g]];
+        for (let i = 0; i < n; i++) {
+          if (isWord[i]) continue;
+          const id = own[base + i];
+          holders[id]++;
+          if (owner[id] < 0) {
+            owner[id] = c;
+            ownerNode[id] = i;
+            ownerGroup[id] = g;
           }
         }
       }
@@ -253,328 +267,44 @@ export class VectorExtractor {
     return views;
   }
 
-  /** The consensus: identities more than half of the candidates have; their summed node features in nRef. */
-  private consensus(cands: readonly CandidateInput[], views: CandidateView[]): void {
-    const m = cands.length;
-    const count = this.stamp; // reused as a counter here, reset below
-    const G = this.groups.length;
-    this.consensusIds.length = 0;
-    for (let c = 0; c < m; c++) {
-      const t = cands[c].tree;
-      for (let g = 0; g < G; g++) {
-        const own = this.nodeIds[g][c];
-        for (let i = 0; i < t.size; i++) if (!t.isWord[i]) count[own[i]]++;
-      }
-    }
-    const nRef = this.nRef;
-    nRef.clear();
-    for (let c = 0; c < m; c++) {
-      const t = cands[c].tree;
-      for (let g = 0; g < G; g++) {
-        const own = this.nodeIds[g][c];
-        for (let i = 0; i < t.size; i++) {
-          if (t.isWord[i]) continue;
-          const id = own[i];
-          if (this.inRef[id] || count[id] * 2 <= m) continue;
-          this.inRef[id] = 1;
-          this.consensusIds.push(id);
-          this.ensure(id, views);
-          nRef.addAll(this.sb, this.sv, this.sFrom[id], this.sTo[id]);
-        }
-      }
-    }
-    this.stamp.fill(-1, 0, this.identifier.ids.count);
-  }
-
-  /**
-   * Each candidate minus the consensus's node part (exact differences of
-   * float32 values), into dIdx/dVal; returns the ranges.
-   */
-  private differencesFromConsensus(cands: readonly CandidateInput[], views: CandidateView[]): Int32Array {
-    const m = cands.length;
-    const from = new Int32Array(m + 1);
-    const { nRef, tCand, merger } = this;
-    const consensus = this.consensusIds;
-    let out = 0;
-    for (let c = 0; c < m; c++) {
-      from[c] = out;
-      const t = cands[c].tree;
-      merger.reset();
-      for (let g = 0; g < this.groups.length; g++) {
-        const own = this.nodeIds[g][c];
-        for (let i = 0; i < t.size; i++) {
-          if (t.isWord[i]) continue;
-          const id = own[i];
-          this.stamp[id] = c;
-          if (this.inRef[id]) continue;
-          this.ensure(id, views);
-          merger.add(this.sFrom[id], this.sTo[id], 1);
-          this.work.replayed += this.sTo[id] - this.sFrom[id];
-        }
-      }
-      for (let k = 0; k < consensus.length; k++) {
-        const id = consensus[k];
-        if (this.stamp[id] !== c) {
-          merger.add(this.sFrom[id], this.sTo[id], -1);
-          this.work.replayed += this.sTo[id] - this.sFrom[id];
-        }
-      }
-      const nd = merger.merge(this.sb, this.sv);
-      const dIdx = merger.outIdx;
-      const dVal = merger.outVal;
-      this.work.touched += nd;
-      // Whole-tree values are summed after the node part, in emission order, as the direct path sums them.
-      tCand.clear();
-      const t0 = this.tFrom[c];
-      const t1 = this.tFrom[c + 1];
-      for (let k = t0; k < t1; k++) {
-        const b = this.tb[k];
-        if (!tCand.has(b)) tCand.add(b, nRef.get(b) + valueAt(dIdx, dVal, nd, b));
-        tCand.add(b, this.tv[k]);
-      }
-      const tb = tCand.sortedBuckets();
-      const need = out + nd + tb.length;
-      if (need > this.dIdx.length) {
-        this.dIdx = grown(this.dIdx, need);
-        this.dVal = grown(this.dVal, need);
-      }
-      // Integer node values below 2^24 round to themselves: there the difference is what the merge gave.
-      const exact = this.nodeReal;
-      let i = 0;
-      let j = 0;
-      while (i < nd || j < tb.length) {
-        let b: number;
-        let d: number;
-        if (j >= tb.length || (i < nd && dIdx[i] < tb[j])) {
-          b = dIdx[i];
-          d = exact ? fround(nRef.get(b) + dVal[i]) - fround(nRef.get(b)) : dVal[i];
-          i++;
-        } else {
-          b = tb[j++];
-          if (i < nd && dIdx[i] === b) i++;
-          d = fround(tCand.get(b)) - fround(nRef.get(b));
-        }
-        if (d !== 0) {
-          this.dIdx[out] = b;
-          this.dVal[out++] = d;
-        }
-      }
-    }
-    from[m] = out;
-    return from;
-  }
-
-  /**
-   * The reference — per bucket, the value a strict majority of the
-   * candidates share, else the consensus's node value — and each candidate's
-   * difference from it. A candidate that does not touch a bucket holds the
-   * consensus value there, so only buckets that more than half the
-   * candidates touch can get another value.
-   */
-  private fromReference(m: number, from: Int32Array): { ref: SparseVector; diffs: SparseVector[]; varying: Uint32Array } {
-    const { dIdx, dVal } = this;
-    const total = from[m];
-    // The union of the lists, with how many candidates touch each bucket.
-    const nu = this.union.count(dIdx, from, m);
-    const ub = this.union.buckets;
-    const uc = this.union.counts;
-    let shiftIdx = this.shiftIdx;
-    let shiftVal = this.shiftVal;
-    let nShift = 0;
-    // Buckets most candidates touch: a value there may hold a strict majority (Boyer–Moore vote, then a count).
-    const heavy: number[] = [];
-    for (let k = 0; k < nu; k++) if (uc[k] * 2 > m) heavy.push(ub[k]);
-    let uniform: number[] = [];
-    if (heavy.length > 0) {
-      const H = heavy.length;
-      const cand = new Float64Array(H);
-      const votes = new Int32Array(H);
-      const agree = new Int32Array(H);
-      for (let pass = 0; pass < 2; pass++) {
-        for (let c = 0; c < m; c++) {
-          // Walk the candidate's sorted list against the sorted heavy buckets.
-          let i = from[c];
-          const e = from[c + 1];
-          for (let h = 0; h < H && i < e; h++) {
-            const b = heavy[h];
-            while (i < e && dIdx[i] < b) i++;
-            if (i >= e || dIdx[i] !== b) continue;
-            const v = dVal[i];
-            if (pass === 0) {
-              if (votes[h] === 0) {
-                cand[h] = v;
-                votes[h] = 1;
-              } else votes[h] += v === cand[h] ? 1 : -1;
-            } else if (votes[h] > 0 && v === cand[h]) agree[h]++;
-          }
-        }
-      }
-      for (let h = 0; h < H; h++) {
-        if (agree[h] * 2 <= m) continue;
-        if (nShift === shiftIdx.length) {
-          shiftIdx = grown(shiftIdx, nShift + 1);
-          shiftVal = grown(shiftVal, nShift + 1);
-        }
-        shiftIdx[nShift] = heavy[h];
-        shiftVal[nShift++] = cand[h];
-        // Every candidate has this value: the bucket does not vary at all.
-        if (agree[h] === m) uniform.push(heavy[h]);
-      }
-    }
-    if (this.vBuf.length < nu) this.vBuf = new Uint32Array(nu * 2);
-    let nVaries = 0;
-    for (let k = 0, u = 0; k < nu; k++) {
-      if (u < uniform.length && ub[k] === uniform[u]) {
-        u++;
-        continue;
-      }
-      this.vBuf[nVaries++] = ub[k];
-    }
-    uniform = [];
-    this.shiftIdx = shiftIdx;
-    this.shiftVal = shiftVal;
-    const varies = this.vBuf.slice(0, nVaries);
-    // Differences from the reference: (candidate − consensus) − (reference − consensus), merged per candidate.
-    const need = total + m * nShift + nVaries + nShift + this.nRef.size;
-    if (need > this.oIdx.length) {
-      this.oIdx = grown(this.oIdx, need);
-      this.oVal = grown(this.oVal, need);
-    }
-    const oIdx = this.oIdx;
-    const oVal = this.oVal;
-    let out = 0;
-    const starts = new Int32Array(m + 1);
-    for (let c = 0; c < m; c++) {
-      starts[c] = out;
-      let i = from[c];
-      const iEnd = from[c + 1];
-      let j = 0;
-      if (nShift === 0) {
-        for (; i < iEnd; i++) {
-          oIdx[out] = dIdx[i];
-          oVal[out++] = dVal[i];
-        }
-        continue;
-      }
-      while (i < iEnd || j < nShift) {
-        let b: number;
-        let v: number;
-        if (j >= nShift || (i < iEnd && dIdx[i] < shiftIdx[j])) {
-          b = dIdx[i];
-          v = dVal[i++];
-        } else if (i >= iEnd || shiftIdx[j] < dIdx[i]) {
-          b = shiftIdx[j];
-          v = -shiftVal[j++];
-        } else {
-          b = dIdx[i];
-          v = dVal[i++] - shiftVal[j++];
-        }
-        if (v !== 0) {
-          oIdx[out] = b;
-          oVal[out++] = v;
-        }
-      }
-    }
-    starts[m] = out;
-    // The stored reference: the consensus's values, shifted.
-    const refFrom = out;
-    const buckets = this.dropUniform ? varies : this.refSupport(varies, shiftIdx.subarray(0, nShift));
-    let j = 0;
-    for (let k = 0; k < buckets.length; k++) {
-      const b = buckets[k];
-      while (j < nShift && shiftIdx[j] < b) j++;
-      const r = fround(this.nRef.get(b));
-      const v = j < nShift && shiftIdx[j] === b ? r + shiftVal[j] : r;
-      if (v !== 0) {
-        oIdx[out] = b;
-        oVal[out++] = v;
-      }
-    }
-    const ref = { idx: oIdx.subarray(refFrom, out), val: oVal.subarray(refFrom, out) };
-    const diffs: SparseVector[] = new Array(m);
-    for (let c = 0; c < m; c++) diffs[c] = { idx: oIdx.subarray(starts[c], starts[c + 1]), val: oVal.subarray(starts[c], starts[c + 1]) };
-    return { ref, diffs, varying: varies };
-  }
-
-  /** Buckets where the consensus is non-zero, the reference shifts it, or the list varies, ascending. */
-  private refSupport(varying: Uint32Array, shifted: Uint32Array): Uint32Array {
-    const acc = this.fired;
-    acc.clear();
-    for (const b of this.nRef.sortedBuckets()) acc.touch(b);
-    for (const b of shifted) acc.touch(b);
-    for (const b of varying) acc.touch(b);
-    const s = acc.sortedBuckets().slice();
-    acc.clear();
-    return s;
-  }
-
-  /** Distinct (template, bucket) pairs fired in the list, and how many of them vary. */
-  private countTemplates(counts: Uint32Array, varying: Uint32Array): void {
-    if (this.nTemplates === 0) return;
-    const seen = this.fired;
-    seen.clear();
-    // Key = bucket, value = the set of templates that fired there, as bits (at most 31 templates).
-    const visit = (b: Int32Array, t: Uint8Array, n: number) => {
-      for (let k = 0; k < n; k++) {
-        const bit = 1 << t[k];
-        if ((seen.get(b[k]) & bit) === 0) seen.add(b[k], bit);
-      }
-    };
-    visit(this.fb, this.ft, this.fn);
-    visit(this.tb, this.tt, this.tn);
-    const buckets = seen.sortedBuckets();
-    for (let k = 0; k < buckets.length; k++) {
-      const b = buckets[k];
-      let bits = seen.get(b);
-      const varies = contains(varying, b);
-      for (let t = 0; bits !== 0; t++, bits >>>= 1) {
-        if ((bits & 1) === 0) continue;
-        counts[2 * t]++;
-        if (varies) counts[2 * t + 1]++;
-      }
-    }
-    seen.clear();
-  }
-
-  /** Computes and keeps the node features of identity `id` (once per list). */
-  private ensure(id: number, views: CandidateView[]): void {
-    if (this.featFrom[id] >= 0) return;
+  /** The node features of every identity of the list (each computed once). */
+  private nodeFeatures(views: CandidateView[]): void {
+    const count = this.identifier.ids.count;
     const sink = this.sink;
-    sink.clear();
-    const view = views[this.owner[id]];
-    const node = this.ownerNode[id];
-    for (const { t, index } of this.groups[this.ownerGroup[id]].templates) {
-      sink.template = index;
-      t.node!(view, node, sink);
+    const { owner, ownerNode, ownerGroup, featFrom, featTo } = this;
+    this.fn = 0;
+    this.nodeReal = false;
+    for (let id = 0; id < count; id++) {
+      if (owner[id] < 0) continue;
+      sink.clear();
+      const view = views[owner[id]];
+      const node = ownerNode[id];
+      for (const { t, index } of this.groups[ownerGroup[id]].templates) {
+        sink.template = index;
+        t.node!(view, node, sink);
+      }
+      const n = sink.length;
+      const f0 = this.fn;
+      if (f0 + n > this.fb.length) {
+        this.fb = grown(this.fb, f0 + n);
+        this.fv = grown(this.fv, f0 + n);
+        this.ft = grown(this.ft, f0 + n);
+      }
+      // Loops, not set(subarray): these lists are short and subarray views cost an allocation each.
+      const lb = sink.buckets;
+      const lv = sink.values;
+      const lt = sink.templates;
+      const { fb, fv, ft } = this;
+      for (let k = 0, f = f0; k < n; k++, f++) {
+        const v = lv[k];
+        fb[f] = lb[k];
+        fv[f] = v;
+        ft[f] = lt[k];
+        if (!this.nodeReal && !Number.isInteger(v)) this.nodeReal = true;
+      }
+      featFrom[id] = f0;
+      featTo[id] = this.fn = f0 + n;
     }
-    const n = sink.length;
-    if (this.fn + n > this.fb.length) {
-      this.fb = grown(this.fb, this.fn + n);
-      this.fv = grown(this.fv, this.fn + n);
-      this.ft = grown(this.ft, this.fn + n);
-    }
-    if (this.sn + n > this.sb.length) {
-      this.sb = grown(this.sb, this.sn + n);
-      this.sv = grown(this.sv, this.sn + n);
-    }
-    // Loops, not set(subarray): these lists are short and subarray views cost an allocation each.
-    const lb = sink.buckets;
-    const lv = sink.values;
-    const lt = sink.templates;
-    const { fb, fv, ft, sb, sv } = this;
-    for (let k = 0, f = this.fn, g = this.sn; k < n; k++, f++, g++) {
-      const v = lv[k];
-      fb[f] = sb[g] = lb[k];
-      fv[f] = sv[g] = v;
-      ft[f] = lt[k];
-      if (!this.nodeReal && !Number.isInteger(v)) this.nodeReal = true;
-    }
-    this.featFrom[id] = this.fn;
-    this.fn += n;
-    this.featTo[id] = this.fn;
-    this.sFrom[id] = this.sn;
-    this.sn = sortAndSum(sb, sv, this.sn, this.sn + n);
-    this.sTo[id] = this.sn;
   }
 
   /** Whole-tree and non-local features of candidate c, into the tree pool. */
@@ -608,32 +338,293 @@ export class VectorExtractor {
     this.tt.set(sink.templates.subarray(0, n), this.tn);
     this.tn += n;
   }
-}
 
-/** The value at bucket b of a sorted list (0 when absent): binary search. */
-function valueAt(idx: Uint32Array, val: Float64Array, n: number, b: number): number {
-  let lo = 0;
-  let hi = n - 1;
-  while (lo <= hi) {
-    const mid = (lo + hi) >> 1;
-    const x = idx[mid];
-    if (x === b) return val[mid];
-    if (x < b) lo = mid + 1;
-    else hi = mid - 1;
+  /** Numbers the buckets of the list's features (columns, ascending by bucket); sizes the per-column arrays. */
+  private numberColumns(): void {
+    const cols = this.columns;
+    const { fn, tn } = this;
+    cols.reset(fn + tn);
+    this.fc = grown(this.fc, fn);
+    this.tc = grown(this.tc, tn);
+    const { fb, fc, tb, tc } = this;
+    for (let k = 0; k < fn; k++) fc[k] = cols.add(fb[k]);
+    for (let k = 0; k < tn; k++) tc[k] = cols.add(tb[k]);
+    const U = cols.finish();
+    const rank = cols.rank;
+    for (let k = 0; k < fn; k++) fc[k] = rank[fc[k]];
+    for (let k = 0; k < tn; k++) tc[k] = rank[tc[k]];
+    this.nCols = U;
+    for (const name of ['colR', 'colD', 'colT', 'colValue'] as const) this[name] = grown(this[name], U);
+    for (const name of ['colTree', 'colCount', 'colVote', 'colAgree', 'colTemplates', 'variesCol'] as const) this[name] = grown(this[name], U);
+    this.colFlags = grown(this.colFlags, U);
+    this.touched = grown(this.touched, (U >> 5) + 1);
+    this.colD.fill(0, 0, U);
+    this.colTree.fill(-1, 0, U);
+    this.touched.fill(0, 0, (U >> 5) + 1);
   }
-  return 0;
-}
 
-/** True when the ascending array holds b (binary search). */
-function contains(sorted: Uint32Array, b: number): boolean {
-  let lo = 0;
-  let hi = sorted.length - 1;
-  while (lo <= hi) {
-    const mid = (lo + hi) >> 1;
-    const x = sorted[mid];
-    if (x === b) return true;
-    if (x < b) lo = mid + 1;
-    else hi = mid - 1;
+  /** The consensus: identities more than half of the candidates have; their summed node features in colR. */
+  private consensus(cands: readonly CandidateInput[]): void {
+    const m = cands.length;
+    const G = this.groups.length;
+    const { holders, inRef, featFrom, featTo, fc, fv, kindIds, nodeFrom } = this;
+    const R = this.colR;
+    R.fill(0, 0, this.nCols);
+    this.consensusIds = grown(this.consensusIds, this.identifier.ids.count);
+    const cons = this.consensusIds;
+    let nc = 0;
+    for (let c = 0; c < m; c++) {
+      const isWord = cands[c].tree.isWord;
+      const n = cands[c].tree.size;
+      const base = nodeFrom[c];
+      for (let g = 0; g < G; g++) {
+        const own = kindIds[this.groupKinds[g]];
+        for (let i = 0; i < n; i++) {
+          if (isWord[i]) continue;
+          const id = own[base + i];
+          if (inRef[id] || holders[id] * 2 <= m) continue;
+          inRef[id] = 1;
+          cons[nc++] = id;
+          for (let e = featFrom[id], e1 = featTo[id]; e < e1; e++) R[fc[e]] += fv[e];
+        }
+      }
+    }
+    this.nConsensus = nc;
   }
-  return false;
+
+  /**
+   * Each candidate minus the consensus (exact differences of float32 values),
+   * as (column, value) lists in dCol/dVal; returns where each candidate's starts.
+   */
+  private differencesFromConsensus(cands: readonly CandidateInput[]): Int32Array {
+    const m = cands.length;
+    const from = new Int32Array(m + 1);
+    const G = this.groups.length;
+    const U = this.nCols;
+    const { inRef, stamp, featFrom, featTo, fc, fv, kindIds, nodeFrom, tc, tv, tFrom, colR: R, colD: D, colT: T, colTree, touched } = this;
+    const cons = this.consensusIds;
+    const nc = this.nConsensus;
+    // Integer node values below 2^24 round to themselves: there the difference is the node sum itself.
+    const exact = this.nodeReal;
+    let replayed = 0;
+    let out = 0;
+    for (let c = 0; c < m; c++) {
+      from[c] = out;
+      if (out + U > this.dCol.length) {
+        this.dCol = grown(this.dCol, out + U);
+        this.dVal = grown(this.dVal, out + U);
+      }
+      const dCol = this.dCol;
+      const dVal = this.dVal;
+      const isWord = cands[c].tree.isWord;
+      const n = cands[c].tree.size;
+      const base = nodeFrom[c];
+      // Node part: + the features of nodes outside the consensus, − those of consensus nodes it lacks.
+      for (let g = 0; g < G; g++) {
+        const own = kindIds[this.groupKinds[g]];
+        for (let i = 0; i < n; i++) {
+          if (isWord[i]) continue;
+          const id = own[base + i];
+          stamp[id] = c;
+          if (inRef[id]) continue;
+          const e1 = featTo[id];
+          replayed += e1 - featFrom[id];
+          for (let e = featFrom[id]; e < e1; e++) {
+            const col = fc[e];
+            D[col] += fv[e];
+            touched[col >> 5] |= 1 << (col & 31);
+          }
+        }
+      }
+      for (let k = 0; k < nc; k++) {
+        const id = cons[k];
+        if (stamp[id] === c) continue;
+        const e1 = featTo[id];
+        replayed += e1 - featFrom[id];
+        for (let e = featFrom[id]; e < e1; e++) {
+          const col = fc[e];
+          D[col] -= fv[e];
+          touched[col >> 5] |= 1 << (col & 31);
+        }
+      }
+      // Whole-tree values are summed after the node part, in emission order, as the direct path sums them.
+      for (let k = tFrom[c], k1 = tFrom[c + 1]; k < k1; k++) {
+        const col = tc[k];
+        if (colTree[col] !== c) {
+          colTree[col] = c;
+          T[col] = R[col] + D[col];
+          touched[col >> 5] |= 1 << (col & 31);
+        }
+        T[col] += tv[k];
+      }
+      // Read back in column (= bucket) order, clearing as we go.
+      const words = (U >> 5) + 1;
+      for (let w = 0; w < words; w++) {
+        let x = touched[w];
+        if (x === 0) continue;
+        touched[w] = 0;
+        while (x !== 0) {
+          const low = x & -x;
+          x ^= low;
+          const col = (w << 5) | (31 - Math.clz32(low));
+          let d: number;
+          if (colTree[col] === c) d = fround(T[col]) - fround(R[col]);
+          else d = exact ? fround(R[col] + D[col]) - fround(R[col]) : D[col];
+          D[col] = 0;
+          if (d !== 0) {
+            dCol[out] = col;
+            dVal[out++] = d;
+          }
+        }
+      }
+    }
+    from[m] = out;
+    this.work.replayed += replayed;
+    this.work.touched += out;
+    return from;
+  }
+
+  /**
+   * The reference — per bucket, the value a strict majority of the
+   * candidates share, else the consensus's node value — and each candidate's
+   * difference from it. A candidate that does not touch a bucket holds the
+   * consensus value there, so only buckets that more than half the
+   * candidates touch can get another value.
+   */
+  private fromReference(m: number, from: Int32Array): { ref: SparseVector; diffs: SparseVector[]; varying: Uint32Array } {
+    const { dCol, dVal, colCount: count, colVote: votes, colValue: value, colAgree: agree, colFlags: flags } = this;
+    const U = this.nCols;
+    const bucketOf = this.columns.buckets;
+    const total = from[m];
+    // How many candidates touch each column (each list holds a column at most once).
+    count.fill(0, 0, U);
+    for (let e = 0; e < total; e++) count[dCol[e]]++;
+    // Columns most candidates touch may hold a strict majority value (Boyer–Moore vote in candidate order, then a count).
+    const HEAVY = 1;
+    const UNIFORM = 2;
+    const SHIFTED = 4;
+    let nHeavy = 0;
+    for (let col = 0; col < U; col++) {
+      if (count[col] * 2 > m) {
+        flags[col] = HEAVY;
+        votes[col] = 0;
+        agree[col] = 0;
+        nHeavy++;
+      } else flags[col] = 0;
+    }
+    let nShift = 0;
+    if (nHeavy > 0) {
+      for (let e = 0; e < total; e++) {
+        const col = dCol[e];
+        if (flags[col] === 0) continue;
+        const v = dVal[e];
+        if (votes[col] === 0) {
+          value[col] = v;
+          votes[col] = 1;
+        } else votes[col] += v === value[col] ? 1 : -1;
+      }
+      for (let e = 0; e < total; e++) {
+        const col = dCol[e];
+        if (flags[col] !== 0 && votes[col] > 0 && dVal[e] === value[col]) agree[col]++;
+      }
+      this.shiftCol = grown(this.shiftCol, nHeavy);
+      this.shiftVal = grown(this.shiftVal, nHeavy);
+      for (let col = 0; col < U; col++) {
+        if (flags[col] === 0 || agree[col] * 2 <= m) continue;
+        this.shiftCol[nShift] = col;
+        this.shiftVal[nShift++] = value[col];
+        flags[col] |= SHIFTED;
+        // Every candidate has this value: the column does not vary at all.
+        if (agree[col] === m) flags[col] |= UNIFORM;
+      }
+    }
+    const { shiftCol, shiftVal, variesCol } = this;
+    let nVaries = 0;
+    for (let col = 0; col < U; col++) if (count[col] > 0 && (flags[col] & UNIFORM) === 0) variesCol[nVaries++] = col;
+    const varies = new Uint32Array(nVaries);
+    for (let k = 0; k < nVaries; k++) varies[k] = bucketOf[variesCol[k]];
+    // Differences from the reference: (candidate − consensus) − (reference − consensus), merged per candidate.
+    const need = total + m * nShift + U;
+    if (need > this.oIdx.length) {
+      this.oIdx = grown(this.oIdx, need);
+      this.oVal = grown(this.oVal, need);
+    }
+    const oIdx = this.oIdx;
+    const oVal = this.oVal;
+    let out = 0;
+    const starts = new Int32Array(m + 1);
+    for (let c = 0; c < m; c++) {
+      starts[c] = out;
+      let i = from[c];
+      const iEnd = from[c + 1];
+      if (nShift === 0) {
+        for (; i < iEnd; i++) {
+          oIdx[out] = bucketOf[dCol[i]];
+          oVal[out++] = dVal[i];
+        }
+        continue;
+      }
+      let j = 0;
+      while (i < iEnd || j < nShift) {
+        let col: number;
+        let v: number;
+        if (j >= nShift || (i < iEnd && dCol[i] < shiftCol[j])) {
+          col = dCol[i];
+          v = dVal[i++];
+        } else if (i >= iEnd || shiftCol[j] < dCol[i]) {
+          col = shiftCol[j];
+          v = -shiftVal[j++];
+        } else {
+          col = dCol[i];
+          v = dVal[i++] - shiftVal[j++];
+        }
+        if (v !== 0) {
+          oIdx[out] = bucketOf[col];
+          oVal[out++] = v;
+        }
+      }
+    }
+    starts[m] = out;
+    // The stored reference: the consensus's values, shifted, where the list varies (or, keeping
+    // uniform features, wherever that is not zero).
+    const refFrom = out;
+    const R = this.colR;
+    const n = this.dropUniform ? nVaries : U;
+    for (let k = 0, j = 0; k < n; k++) {
+      const col = this.dropUniform ? variesCol[k] : k;
+      while (j < nShift && shiftCol[j] < col) j++;
+      const r = fround(R[col]);
+      const v = j < nShift && shiftCol[j] === col ? r + shiftVal[j] : r;
+      if (v !== 0) {
+        oIdx[out] = bucketOf[col];
+        oVal[out++] = v;
+      }
+    }
+    const ref = { idx: oIdx.subarray(refFrom, out), val: oVal.subarray(refFrom, out) };
+    const diffs: SparseVector[] = new Array(m);
+    for (let c = 0; c < m; c++) diffs[c] = { idx: oIdx.subarray(starts[c], starts[c + 1]), val: oVal.subarray(starts[c], starts[c + 1]) };
+    for (let col = 0; col < U; col++) flags[col] = count[col] > 0 && (flags[col] & UNIFORM) === 0 ? 1 : 0;
+    return { ref, diffs, varying: varies };
+  }
+
+  /** Distinct (template, bucket) pairs fired in the list, and how many of them vary (colFlags, set by fromReference). */
+  private countTemplates(counts: Uint32Array): void {
+    if (this.nTemplates === 0) return;
+    const U = this.nCols;
+    const mask = this.colTemplates;
+    const varies = this.colFlags;
+    mask.fill(0, 0, U);
+    // Per column, the set of templates that fired there, as bits (at most 31 templates).
+    const { fc, ft, tc, tt } = this;
+    for (let k = 0, n = this.fn; k < n; k++) mask[fc[k]] |= 1 << ft[k];
+    for (let k = 0, n = this.tn; k < n; k++) mask[tc[k]] |= 1 << tt[k];
+    for (let col = 0; col < U; col++) {
+      const v = varies[col];
+      for (let bits = mask[col], t = 0; bits !== 0; t++, bits >>>= 1) {
+        if ((bits & 1) === 0) continue;
+        counts[2 * t]++;
+        counts[2 * t + 1] += v;
+      }
+    }
+  }
 }

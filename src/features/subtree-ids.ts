@@ -150,10 +150,15 @@ export const kindOf = (depth: number, edgeTags: boolean): number => (edgeTags ? 
  * every level — depends only on its subtree, so it is computed once per
  * distinct subtree in the list and copied for every later candidate that has
  * the same subtree: the work per candidate follows what is new in it.
+ *
+ * Views are reused from list to list (one per candidate slot, arrays grown
+ * when needed, so they may be longer than the tree): a view is valid until
+ * the next list is identified.
  */
 export class NodeIdentifier {
   readonly ids = new SequenceIds();
-  private readonly kinds: number[];
+  /** The kinds computed: the wanted ones and every level below the deepest. */
+  readonly kinds: number[];
   // Per whole-subtree identity: whether known, head child position, head word position, height, and one identity per kind.
   private known = new Uint8Array(1024);
   private headPos = new Int32Array(1024);
@@ -161,6 +166,7 @@ export class NodeIdentifier {
   private heightOf = new Int32Array(1024);
   private level = new Int32Array(1024 * KINDS);
   private full = new Int32Array(256);
+  private readonly views: CandidateView[] = [];
 
   constructor(private readonly wanted: readonly boolean[], private readonly maxDepth: number) {
     this.kinds = [];
@@ -172,34 +178,52 @@ export class NodeIdentifier {
     this.known.fill(0);
   }
 
+  /** Candidate slot c's view, its arrays at least n long. */
+  private viewFor(c: number, n: number): CandidateView {
+    let v = this.views[c];
+    if (!v || v.height.length < n) {
+      const size = Math.max(64, n * 2);
+      v = { tree: null as unknown as Tree, headChild: new Int32Array(size), headWord: new Int32Array(size), preterminal: new Uint8Array(size), height: new Int32Array(size), score: 0, rank: 0 };
+      this.views[c] = v;
+    }
+    return v;
+  }
+
   /**
-   * The view of `tree` and its node identities per kind (into out[kind],
-   * each at least tree.size long).
+   * The view of `tree` (candidate slot c) and its node identities per kind,
+   * node i's at out[kind][base + i].
    */
-  identify(tree: Tree, score: number, rank: number, out: Int32Array[], headOf: (tree: Tree, node: number) => number): CandidateView {
+  identify(c: number, tree: Tree, score: number, rank: number, out: Int32Array[], base: number, headOf: (tree: Tree, node: number) => number): CandidateView {
     const { sym, start, stop, end, parent, isWord, wordNodes } = tree;
     const n = tree.size;
     const ids = this.ids;
-    const headChild = new Int32Array(n).fill(-1);
-    const headWord = new Int32Array(n);
-    const preterminal = new Uint8Array(n);
-    const height = new Int32Array(n);
+    const view = this.viewFor(c, n);
+    view.tree = tree;
+    view.score = score;
+    view.rank = rank;
+    const { headChild, headWord, preterminal, height } = view;
     if (this.full.length < n) this.full = new Int32Array(n * 2);
     const full = this.full;
+    const kinds = this.kinds;
+    const nk = kinds.length;
     for (let i = n - 1; i >= 0; i--) {
+      const at = base + i;
       if (isWord[i]) {
         full[i] = start[i];
+        headChild[i] = -1;
         headWord[i] = i;
-        for (const k of this.kinds) out[k][i] = start[i];
+        preterminal[i] = 0;
+        height[i] = 0;
+        for (let k = 0; k < nk; k++) out[kinds[k]][at] = start[i];
         continue;
       }
       ids.begin();
       ids.push(-100);
       ids.push(sym[i]);
       let pre = 1;
-      for (let c = i + 1; c < end[i]; c = end[c]) {
-        ids.push(full[c]);
-        if (!isWord[c]) pre = 0;
+      for (let ch = i + 1; ch < end[i]; ch = end[ch]) {
+        ids.push(full[ch]);
+        if (!isWord[ch]) pre = 0;
       }
       const f = ids.id();
       full[i] = f;
@@ -207,24 +231,24 @@ export class NodeIdentifier {
       this.grow(f);
       if (this.known[f]) {
         // A subtree seen before in this list: copy what it determines.
-        let c = i + 1;
-        for (let k = this.headAt[f]; k > 0; k--) c = end[c];
-        headChild[i] = c;
+        let ch = i + 1;
+        for (let k = this.headAt[f]; k > 0; k--) ch = end[ch];
+        headChild[i] = ch;
         headWord[i] = wordNodes[this.headPos[f]];
         height[i] = this.heightOf[f];
-        const base = f * KINDS;
-        for (const k of this.kinds) out[k][i] = this.level[base + k];
+        const lv = f * KINDS;
+        for (let k = 0; k < nk; k++) out[kinds[k]][at] = this.level[lv + kinds[k]];
         continue;
       }
       // New subtree: its head, height, and identities at each level.
       const hc = headOf(tree, i);
       let pos = 0;
-      let c = i + 1;
+      let ch = i + 1;
       let h = 0;
-      for (; c < end[i]; c = end[c]) if (height[c] > h) h = height[c];
-      c = i + 1;
-      while (c !== hc) {
-        c = end[c];
+      for (; ch < end[i]; ch = end[ch]) if (height[ch] > h) h = height[ch];
+      ch = i + 1;
+      while (ch !== hc) {
+        ch = end[ch];
         pos++;
       }
       headChild[i] = hc;
@@ -240,33 +264,33 @@ export class NodeIdentifier {
       ids.push(sym[parent[hw]]);
       ids.push(h + 1);
       const r0 = ids.id();
-      out[0][i] = r0;
+      out[0][at] = r0;
       for (let d = 1; d <= this.maxDepth; d++) {
         const below = out[d - 1];
         ids.begin();
         ids.push(-1 - d);
         ids.push(r0);
-        for (let k = i + 1; k < end[i]; k = end[k]) ids.push(below[k]);
-        out[d][i] = ids.id();
+        for (let k = i + 1; k < end[i]; k = end[k]) ids.push(below[base + k]);
+        out[d][at] = ids.id();
       }
       for (let d = 0; d <= 3; d++) {
         if (!this.wanted[4 + d]) continue;
         ids.begin();
         ids.push(-10 - d);
-        ids.push(out[d][i]);
+        ids.push(out[d][at]);
         ids.push(sym[parent[wordNodes[start[i]]]]);
         ids.push(sym[parent[wordNodes[stop[i] - 1]]]);
-        out[4 + d][i] = ids.id();
+        out[4 + d][at] = ids.id();
       }
       this.grow(f);
       this.known[f] = 1;
       this.headAt[f] = pos;
       this.headPos[f] = start[hw];
       this.heightOf[f] = h + 1;
-      const base = f * KINDS;
-      for (const k of this.kinds) this.level[base + k] = out[k][i];
+      const lv = f * KINDS;
+      for (let k = 0; k < nk; k++) this.level[lv + kinds[k]] = out[kinds[k]][at];
     }
-    return { tree, headChild, headWord, preterminal, height, score, rank };
+    return view;
   }
 
   private grow(f: number): void {
