@@ -48,6 +48,31 @@ describe('MessagePack', () => {
     }
   });
 
+  it('writes numbers as a bin of little-endian elements (binOf): what @msgpack/msgpack decodes is the typed array\'s bytes', () => {
+    const r = rand(11);
+    const kinds = [
+      ['i8', Int8Array, () => Math.floor(r() * 256) - 128],
+      ['i16', Int16Array, () => Math.floor(r() * 65536) - 32768],
+      ['i32', Int32Array, () => Math.floor(r() * 2 ** 32) - 2 ** 31],
+      ['u32', Uint32Array, () => Math.floor(r() * 2 ** 32)],
+      ['f32', Float32Array, () => Math.fround((r() - 0.5) * 1e4)],
+      ['f64', Float64Array, () => (r() - 0.5) * 1e9],
+    ] as const;
+    for (const [type, Typed, draw] of kinds) {
+      // Lengths across the bin8 / bin16 / bin32 header sizes, at odd offsets in the output.
+      for (const n of [0, 1, 7, 63, 300, 20000]) {
+        const src = Array.from({ length: n + 3 }, draw);
+        const w = new MsgpackWriter();
+        w.str('x');
+        w.binOf(src, 2, n, type);
+        const [, bin] = decodeAll(w.bytes()) as [string, Uint8Array];
+        const expected = Typed.from(src.slice(2, 2 + n));
+        expect(decode(w.bytes().subarray(2)), `${type} × ${n}`).toEqual(new Uint8Array(expected.buffer));
+        expect(Array.from(bin)).toEqual(Array.from(new Uint8Array(expected.buffer)));
+      }
+    }
+  });
+
   it('refuses extension types, naming the byte offset', () => {
     const codec = new ExtensionCodec();
     codec.register({ type: 1, encode: (x: unknown) => (x instanceof Date ? new Uint8Array([1, 2, 3]) : null), decode: () => null });

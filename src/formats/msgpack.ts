@@ -13,6 +13,10 @@
 const encoder = new TextEncoder();
 const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
 
+/** Element types `binOf` writes. */
+export type BinElement = 'i8' | 'i16' | 'i32' | 'u32' | 'f32' | 'f64';
+const BIN_WIDTH: Record<BinElement, number> = { i8: 1, i16: 2, i32: 4, u32: 4, f32: 4, f64: 8 };
+
 export class MsgpackWriter {
   private buf = new Uint8Array(1 << 16);
   private view = new DataView(this.buf.buffer);
@@ -122,12 +126,51 @@ export class MsgpackWriter {
 
   bin(data: ArrayBufferView): void {
     const n = data.byteLength;
+    this.binHeader(n);
+    this.buf.set(new Uint8Array(data.buffer, data.byteOffset, n), this.len);
+    this.len += n;
+  }
+
+  /**
+   * A bin of `n` numbers of `src` from `from` on, as little-endian elements of
+   * `type`: the bytes `bin()` writes for the same values in a typed array of
+   * that type, without making the typed array (hot: every vector of a shard).
+   */
+  binOf(src: ArrayLike<number>, from: number, n: number, type: BinElement): void {
+    const width = BIN_WIDTH[type];
+    this.binHeader(n * width);
+    const buf = this.buf;
+    const view = this.view;
+    let o = this.len;
+    const to = from + n;
+    switch (type) {
+      case 'i8':
+        for (let k = from; k < to; k++) buf[o++] = src[k];
+        break;
+      case 'i16':
+        for (let k = from; k < to; k++, o += 2) view.setInt16(o, src[k], true);
+        break;
+      case 'i32':
+        for (let k = from; k < to; k++, o += 4) view.setInt32(o, src[k], true);
+        break;
+      case 'u32':
+        for (let k = from; k < to; k++, o += 4) view.setUint32(o, src[k], true);
+        break;
+      case 'f32':
+        for (let k = from; k < to; k++, o += 4) view.setFloat32(o, src[k], true);
+        break;
+      default:
+        for (let k = from; k < to; k++, o += 8) view.setFloat64(o, src[k], true);
+    }
+    this.len = o;
+  }
+
+  /** A bin header for `n` bytes, with room for them. */
+  private binHeader(n: number): void {
     this.ensure(n + 5);
     if (n < 0x100) { this.u8(0xc4); this.u8(n); }
     else if (n < 0x10000) { this.u8(0xc5); this.view.setUint16(this.len, n); this.len += 2; }
     else { this.u8(0xc6); this.view.setUint32(this.len, n); this.len += 4; }
-    this.buf.set(new Uint8Array(data.buffer, data.byteOffset, n), this.len);
-    this.len += n;
   }
 
   /** Any plain value: null, boolean, number (safe integer or float64), string, Uint8Array (bin), array, object. */

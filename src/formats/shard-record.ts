@@ -31,7 +31,7 @@
 import { DataError } from '../core/errors.js';
 import { isStoredInteger, type StoredVector, type Values } from '../core/sparse-vector.js';
 import type { RankingList, ShardCandidate, ShardSentence } from '../records.js';
-import { MsgpackError, MsgpackWriter, type Decoded } from './msgpack.js';
+import { MsgpackError, MsgpackWriter, type BinElement, type Decoded } from './msgpack.js';
 import { show } from '../core/show.js';
 
 export const SHARD_FORMAT = 'sheaf-shards/2';
@@ -44,13 +44,13 @@ const KEY = Object.fromEntries(
 );
 const DTYPE = Object.fromEntries((['<i1', '<i2', '<i4', '<f4', '<f8'] as const).map((t) => [t, encoder.encode(t)])) as Record<ValueType, Uint8Array>;
 
-/** The narrowest type that holds every value exactly (`real`: only float types). */
-export function narrowestType(val: ArrayLike<number>, real = false): ValueType {
+/** The narrowest type that holds every value exactly (`real`: only float types); `n` values from 0. */
+export function narrowestType(val: ArrayLike<number>, real = false, n = val.length): ValueType {
   let ints = true;
   let f32 = true;
   let lo = 0;
   let hi = 0;
-  for (let k = 0; k < val.length; k++) {
+  for (let k = 0; k < n; k++) {
     const v = val[k];
     if (ints && !Number.isInteger(v)) ints = false;
     if (f32 && Math.fround(v) !== v) f32 = false;
@@ -64,15 +64,7 @@ export function narrowestType(val: ArrayLike<number>, real = false): ValueType {
   return f32 ? '<f4' : '<f8';
 }
 
-function typed(val: ArrayLike<number>, t: ValueType): Values {
-  switch (t) {
-    case '<i1': return Int8Array.from(val);
-    case '<i2': return Int16Array.from(val);
-    case '<i4': return Int32Array.from(val);
-    case '<f4': return Float32Array.from(val);
-    default: return Float64Array.from(val);
-  }
-}
+const ELEMENT: Record<ValueType, BinElement> = { '<i1': 'i8', '<i2': 'i16', '<i4': 'i32', '<f4': 'f32', '<f8': 'f64' };
 
 let intIdx = new Uint32Array(1024);
 let intVal = new Float64Array(1024);
@@ -106,18 +98,18 @@ function writeVector(w: MsgpackWriter, idx: Uint32Array, val: ArrayLike<number>)
       realVal[b++] = v;
     }
   }
-  const ti = narrowestType(intVal.subarray(0, a));
-  const tr = narrowestType(realVal.subarray(0, b), true);
+  const ti = narrowestType(intVal, false, a);
+  const tr = narrowestType(realVal, true, b);
   w.strBytes(KEY.idx);
-  w.bin(intIdx.subarray(0, a));
+  w.binOf(intIdx, 0, a, 'u32');
   w.strBytes(KEY.val);
-  w.bin(typed(intVal.subarray(0, a), ti));
+  w.binOf(intVal, 0, a, ELEMENT[ti]);
   w.strBytes(KEY.dtype);
   w.strBytes(DTYPE[ti]);
   w.strBytes(KEY.ridx);
-  w.bin(realIdx.subarray(0, b));
+  w.binOf(realIdx, 0, b, 'u32');
   w.strBytes(KEY.rval);
-  w.bin(typed(realVal.subarray(0, b), tr));
+  w.binOf(realVal, 0, b, ELEMENT[tr]);
   w.strBytes(KEY.rdtype);
   w.strBytes(DTYPE[tr]);
 }
