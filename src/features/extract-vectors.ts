@@ -402,6 +402,10 @@ export class VectorExtractor {
     const G = this.groups.length;
     const U = this.nCols;
     const { inRef, stamp, featFrom, featTo, fc, fv, kindIds, nodeFrom, tc, tv, tFrom, colR: R, colD: D, colT: T, colTree, touched } = this;
+    // Per column, for the reference: how many candidates touch it, and a Boyer–Moore vote over their values in candidate order.
+    const { colCount: count, colVote: votes, colValue: value } = this;
+    count.fill(0, 0, U);
+    votes.fill(0, 0, U);
     const cons = this.consensusIds;
     const nc = this.nConsensus;
     // Integer node values below 2^24 round to themselves: there the difference is the node sum itself.
@@ -474,6 +478,11 @@ export class VectorExtractor {
           if (d !== 0) {
             dCol[out] = col;
             dVal[out++] = d;
+            count[col]++;
+            if (votes[col] === 0) {
+              value[col] = d;
+              votes[col] = 1;
+            } else votes[col] += d === value[col] ? 1 : -1;
           }
         }
       }
@@ -496,18 +505,14 @@ export class VectorExtractor {
     const U = this.nCols;
     const bucketOf = this.columns.buckets;
     const total = from[m];
-    // How many candidates touch each column (each list holds a column at most once).
-    count.fill(0, 0, U);
-    for (let e = 0; e < total; e++) count[dCol[e]]++;
-    // Columns most candidates touch may hold a strict majority value (Boyer–Moore vote in candidate order, then a count).
+    // Columns most candidates touch may hold a strict majority value: the vote's winner
+    // (differencesFromConsensus ran the vote), if a count confirms it.
     const HEAVY = 1;
     const UNIFORM = 2;
-    const SHIFTED = 4;
     let nHeavy = 0;
     for (let col = 0; col < U; col++) {
-      if (count[col] * 2 > m) {
+      if (count[col] * 2 > m && votes[col] > 0) {
         flags[col] = HEAVY;
-        votes[col] = 0;
         agree[col] = 0;
         nHeavy++;
       } else flags[col] = 0;
@@ -516,16 +521,7 @@ export class VectorExtractor {
     if (nHeavy > 0) {
       for (let e = 0; e < total; e++) {
         const col = dCol[e];
-        if (flags[col] === 0) continue;
-        const v = dVal[e];
-        if (votes[col] === 0) {
-          value[col] = v;
-          votes[col] = 1;
-        } else votes[col] += v === value[col] ? 1 : -1;
-      }
-      for (let e = 0; e < total; e++) {
-        const col = dCol[e];
-        if (flags[col] !== 0 && votes[col] > 0 && dVal[e] === value[col]) agree[col]++;
+        if (flags[col] !== 0 && dVal[e] === value[col]) agree[col]++;
       }
       this.shiftCol = grown(this.shiftCol, nHeavy);
       this.shiftVal = grown(this.shiftVal, nHeavy);
@@ -533,7 +529,6 @@ export class VectorExtractor {
         if (flags[col] === 0 || agree[col] * 2 <= m) continue;
         this.shiftCol[nShift] = col;
         this.shiftVal[nShift++] = value[col];
-        flags[col] |= SHIFTED;
         // Every candidate has this value: the column does not vary at all.
         if (agree[col] === m) flags[col] |= UNIFORM;
       }
