@@ -22,11 +22,15 @@ export class PartOutput {
   private readonly positionsTmp: string;
   private readonly pos = new BigUint64Array(1);
 
-  /** Opens the reject positions, cut back to the `state.rejected` of a resumed run (0: fresh). */
+  /**
+   * Opens the reject positions, cut back to those of a resumed run's last
+   * complete shard (0: fresh): one per rejected record and one per dropped
+   * candidate, as rejects.jsonl has a line for each.
+   */
   constructor(private readonly dir: string, readonly spec: PartSpec, state: WriterState) {
     this.positionsTmp = join(dir, `${REJECT_POSITIONS}.tmp`);
     if (!existsSync(this.positionsTmp)) closeSync(openSync(this.positionsTmp, 'w'));
-    truncateSync(this.positionsTmp, 8 * state.rejected);
+    truncateSync(this.positionsTmp, 8 * (state.rejected + (state.candidatesDropped ?? 0)));
     this.fd = openSync(this.positionsTmp, 'a');
   }
 
