@@ -80,6 +80,13 @@ export interface NbestRecord {
 
 export type RejectCode = DataErrorCode;
 
+/** A candidate left out of a list that was kept: its base rank and why (`yield-mismatch`, or the code of its tree's parse error). */
+export interface DroppedCandidate {
+  rank: number;
+  code: RejectCode;
+  reason: string;
+}
+
 /** A refused input record: one line of rejects.jsonl. */
 export interface RejectRecord {
   file: string;
@@ -115,7 +122,7 @@ export type SentenceResult =
       rawBytes: number;
       candidates: number;
       /** Candidates left out because their words differ from the gold's (base rank and why). */
-      dropped: { rank: number; code: RejectCode; reason: string }[];
+      dropped: DroppedCandidate[];
       /** Buckets that vary in the sentence (for the shard's count file). */
       varying: Uint32Array;
       /** Per template: distinct buckets fired, of which vary (2 entries each). */

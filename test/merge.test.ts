@@ -56,8 +56,10 @@ beforeAll(async () => {
     lines[0],                                                                      // duplicate id (join)
     mutate(4, (r) => { r.id = 'no-such-id'; }),                                    // no gold (join)
     mutate(5, (r) => { r.candidates = []; }),                                      // kept, flagged
-    ...lines.slice(6, -1),
-    mutate(lines.length - 1, (r) => { r.candidates[1].tree = '(S (NP (NN rope)'; }), // a candidate that does not parse (worker)
+    ...lines.slice(6, 12),
+    mutate(12, (r) => { r.candidates[1].tree = '(S (NP (NN rope)'; }),            // a candidate that does not parse: dropped (worker)
+    ...lines.slice(13, -1),
+    mutate(lines.length - 1, (r) => { for (const c of r.candidates) c.tree = '(S (NP (NN rope)'; }), // no candidate parses: the list is refused (worker)
   ];
   const first = join(dir, 'in', 'damaged-fold-0.jsonl');
   writeFileSync(first, damaged.join('\n') + '\n');
@@ -154,13 +156,14 @@ describe('prepare --part and merge', () => {
   it('merges N = 1, 2, 3, 4 parts into files byte-identical to one machine\'s, rejects included', async () => {
     oneMachine = fresh('one');
     const one = await prepare({ out: oneMachine });
-    // The yield mismatch drops one candidate, not its list (one rejects line, the list kept).
+    // The yield mismatch and the tree that does not parse drop one candidate each, not their lists
+    // (one rejects line each, the lists kept).
     expect(one.rejected).toBeGreaterThanOrEqual(4);
-    expect(one.candidatesDropped).toBe(1);
+    expect(one.candidatesDropped).toBe(2);
     expect(one.goldRejected).toBe(1);
     const codes = readFileSync(join(oneMachine, 'rejects.jsonl'), 'utf8').trim().split('\n').map((l) => JSON.parse(l).code);
     // The gold reject first, then the records' in input order: reader, worker and join refusals.
-    expect(codes).toEqual(['unbalanced', 'bad-json', 'yield-mismatch', 'duplicate-id', 'no-gold', 'unbalanced']);
+    expect(codes).toEqual(['unbalanced', 'bad-json', 'yield-mismatch', 'duplicate-id', 'no-gold', 'unbalanced', 'unbalanced']);
     expect(readManifest(oneMachine).shards.length).toBeGreaterThan(3);
     for (const N of [1, 2, 3, 4]) {
       const ps = await parts(N);

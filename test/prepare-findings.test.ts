@@ -147,6 +147,43 @@ describe('findings: a candidate whose words differ is dropped, not the sentence'
   });
 });
 
+describe('findings: a candidate whose tree does not parse is dropped, not the sentence', () => {
+  const gold = () => write('gold.trees', goldText(4));
+  // Sentence 1: rank 1 has a bracket missing; sentence 2: rank 0 a stray `)`, rank 2 the wrong words;
+  // sentence 3: no candidate parses; sentence 4: one does not parse, the other has the wrong words.
+  const dump = () => write('d.jsonl', jsonl([
+    { id: '1', candidates: [{ tree: tree(1), score: -1 }, { tree: tree(1).slice(0, -1), score: -2 }, { tree: flat(1), score: -3 }] },
+    { id: '2', candidates: [{ tree: tree(2) + ')', score: -1 }, { tree: flat(2), score: -2 }, { tree: tree(2).replace('(VBD logged)', '(VBD logs)'), score: -3 }] },
+    { id: '3', candidates: [{ tree: '(S (NP', score: -1 }, { tree: '()', score: -2 }] },
+    { id: '4', candidates: [{ tree: '(S (NP', score: -1 }, { tree: tree(4).replace('(VBD logged)', '(VBD logs)'), score: -2 }] },
+  ]));
+
+  it('keeps the list with its other candidates and their base ranks; one rejects line per dropped candidate, in rank order', async () => {
+    const s = await prepare({ gold: gold(), nbest: [dump()] });
+    expect(s).toMatchObject({ read: 4, written: 2, rejected: 2, candidatesRead: 6, candidates: 3, candidatesDropped: 3 });
+    const m = readManifest(s.out);
+    expect(m.totals.candidatesRead).toBe(m.totals.candidates + m.totals.candidatesDropped);
+    const xs = await sentences(s.out);
+    expect(xs.map((x) => [x.id, x.cands.map((c) => c.rank)])).toEqual([['1', [0, 2]], ['2', [1]]]);
+    const rejects = rejectsOf(s.out);
+    expect(rejects.map((r) => [r.id, r.candidate ?? null, r.code])).toEqual([
+      ['1', 1, 'unbalanced'],
+      ['2', 0, 'unexpected-close'],
+      ['2', 2, 'yield-mismatch'],
+      ['3', null, 'unbalanced'],
+      ['4', null, 'yield-mismatch'],
+    ]);
+    expect(rejects[0].reason).toMatch(/^candidate 1 does not parse .*; dropped, the list is kept/);
+    expect(rejects[2].reason).toMatch(/^candidate 2: /);
+    expect(rejects[3].reason).toMatch(/no candidate tree of the 2 parses; the first: candidate 0 does not parse/);
+    expect(rejects[4].reason).toMatch(/no candidate of the 2 is usable: 1 do not parse, the words of 1 differ from the gold tree's/);
+  });
+
+  it('with --strict the first such candidate stops the run', async () => {
+    await expect(prepare({ gold: gold(), nbest: [dump()], strict: true })).rejects.toThrow(/candidate 1 does not parse.*stopped by --strict/);
+  });
+});
+
 describe('findings: silent damage', () => {
   it('a score beyond the float32 range is refused; scores near its edge give finite features', async () => {
     const gold = write('gold.trees', goldText(3));

@@ -269,7 +269,7 @@ describe('sheaf prepare', () => {
       mutate(2, (r) => { delete r.candidates; }),                          // 3 missing field
       mutate(3, (r) => { r.candidates[0].score = '-3.5'; }),               // 4 non-numeric score
       lines[4].replace(/"score":-?[0-9.]+/, '"score":NaN'),                // 5 NaN (not JSON)
-      mutate(5, (r) => { r.candidates[1].tree = '(S (NP (NN rope)'; }),    // 6 tree does not parse
+      mutate(5, (r) => { r.candidates[1].tree = '(S (NP (NN rope)'; }),    // 6 candidate 1's tree does not parse: candidate dropped
       mutate(6, (r) => { r.candidates[0].tree = r.candidates[0].tree.replace(/\(NN ([^)]+)\)/, '(NN zebra)'); }), // 7 yield differs: candidate dropped
       lines[0],                                                            // 8 duplicate id
       mutate(7, (r) => { r.id = 'no-such-id'; }),                          // 9 no gold
@@ -288,11 +288,14 @@ describe('sheaf prepare', () => {
     expect(rej.find((r) => r.code === 'yield-mismatch').reason).toMatch(/candidate 0: .*gold `[^`]+`, candidate `zebra`/);
     expect(rej.find((r) => r.file === g)).toMatchObject({ code: 'truncated' });
     for (const r of rej) expect(Object.keys(r)).toEqual(r.candidate === undefined ? ['file', 'line', 'column', 'id', 'code', 'reason'] : ['file', 'line', 'column', 'id', 'candidate', 'code', 'reason']);
-    // The list of line 7 is kept without its candidate 0.
+    // The list of line 7 is kept without its candidate 0, that of line 6 without its candidate 1.
+    expect(rej.find((r) => r.code === 'unbalanced')).toMatchObject({ line: 6, candidate: 1 });
+    expect(rej.find((r) => r.code === 'unbalanced').reason).toMatch(/^candidate 1 does not parse/);
+    expect((await all(s.out)).find((x) => x.id === rec(5).id)!.cands.map((c) => c.rank)).toEqual(rec(5).candidates.map((_: unknown, k: number) => k).filter((k: number) => k !== 1));
     expect(rej.find((r) => r.code === 'yield-mismatch')).toMatchObject({ line: 7, candidate: 0 });
     expect((await all(s.out)).find((x) => x.id === rec(6).id)!.cands.map((c) => c.rank)).toEqual(rec(6).candidates.slice(1).map((_: unknown, k: number) => k + 1));
     expect(s.candidatesRead).toBe(s.candidates + s.candidatesDropped);
-    expect(s.candidatesDropped).toBe(1);
+    expect(s.candidatesDropped).toBe(2);
     expect(s.read).toBe(s.written + s.rejected);
     expect(s.noCandidates).toBe(1);
     const flagged = (await all(s.out)).filter((r) => r.flag).map((r) => [r.id, r.flag, r.cands.length, r.ref]);

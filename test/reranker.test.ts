@@ -120,23 +120,36 @@ describe('eval', () => {
 });
 
 describe('rerank', () => {
-  it('writes exactly one line per input record, picks as eval does, and falls back on records it cannot re-rank', async () => {
+  it('writes exactly one line per input record, picks as eval does, leaves out candidates that do not parse, and writes empty lines for records it cannot re-rank', async () => {
     const lines = gunzipSync(readFileSync(devDump)).toString('utf8').trim().split('\n');
     const recs = lines.map((l) => JSON.parse(l));
     const broken = { ...recs[1], candidates: [recs[1].candidates[0], { tree: '(S (NP (NN rope)', score: -1 }] };
-    const mixed = [lines[0], '{"id": "x", "candidates": [', JSON.stringify(broken), JSON.stringify({ ...recs[2], candidates: [] }), ...lines.slice(3)];
+    const firstBroken = { ...recs[2], id: 'first-broken', candidates: [{ tree: '(S (NP (NN rope)', score: -1 }, recs[2].candidates[1], recs[2].candidates[0]] };
+    const noneParse = { ...recs[3], id: 'none-parse', candidates: [{ tree: '(S (NP', score: -1 }, { tree: '((', score: -2 }] };
+    const mixed = [lines[0], '{"id": "x", "candidates": [', JSON.stringify(broken), JSON.stringify({ ...recs[2], candidates: [] }), ...lines.slice(3), JSON.stringify(firstBroken), JSON.stringify(noneParse)];
     const f = at('mixed.jsonl');
     writeFileSync(f, mixed.join('\n') + '\n');
     const out: string[] = [];
     const warnings: string[] = [];
     const s = await runRerank({ dump: f, model: at('model-a'), jsonl: true, workers: 2 }, async (l) => { out.push(l); }, (w) => warnings.push(w));
     expect(out).toHaveLength(mixed.length);
-    expect(s).toMatchObject({ read: mixed.length, fellBack: 1, empty: 2 });
+    expect(s).toMatchObject({ read: mixed.length, reranked: mixed.length - 3, fellBack: 0, empty: 3, candidatesSkipped: 2 });
     const rows = out.map((l) => JSON.parse(l));
     expect(rows[1]).toMatchObject({ id: null, tree: null });
-    expect(rows[2]).toMatchObject({ id: broken.id, rank: 0, score: null, tree: broken.candidates[0].tree });
+    // The one candidate that parses is the choice; the other is named.
+    expect(rows[2]).toMatchObject({ id: broken.id, rank: 0, tree: broken.candidates[0].tree, skipped: [1] });
+    expect(typeof rows[2].score).toBe('number');
     expect(rows[3]).toMatchObject({ rank: null, tree: null });
     expect(warnings.join('\n')).toMatch(/mixed\.jsonl:2: .*wrote an empty line/);
+    expect(warnings.join('\n')).toMatch(/mixed\.jsonl:3 \(id `[^`]+`\): candidate 1 left out \(candidate 1 does not parse/);
+    // Rank 0 does not parse: the choice is among ranks 1 and 2, and keeps the base numbering.
+    const fb = rows[rows.length - 2];
+    expect(fb.id).toBe('first-broken');
+    expect(fb.skipped).toEqual([0]);
+    expect([1, 2]).toContain(fb.rank);
+    expect(fb.tree).toBe(firstBroken.candidates[fb.rank].tree);
+    expect(rows[rows.length - 1]).toMatchObject({ id: 'none-parse', rank: null, score: null, tree: null });
+    expect(rows[rows.length - 1].why).toMatch(/no candidate tree of the 2 parses/);
     // On well-formed lists the choice is eval's.
     const m = loadModel(at('model-a'));
     const chosen = new Map<string, number>();
@@ -144,7 +157,7 @@ describe('rerank', () => {
       const l = rankingList(sent);
       chosen.set(sent.id, sent.cands[pick(l, scores(l, m.weights))].rank);
     }
-    for (const r of rows.slice(4)) expect(r.rank, r.id).toBe(chosen.get(r.id));
+    for (const r of rows.slice(4, -2)) expect(r.rank, r.id).toBe(chosen.get(r.id));
     // Plain output: one bracketed tree per line.
     const plain: string[] = [];
     await runRerank({ dump: devDump, model: at('model-a'), workers: 0 }, async (l) => { plain.push(l); }, () => {});

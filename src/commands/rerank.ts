@@ -21,7 +21,7 @@ export const rerankCommand: CommandModule = {
     const quiet = args.quiet as boolean;
     const s = await runRerank({ dump: args.dump as string, model: args.model as string, jsonl: args.jsonl as boolean, workers: args.workers as number }, (l) => out.line(l), (l) => { if (!quiet) console.error(l); }, () => out.closed);
     await out.flush();
-    if (!quiet) console.error(`sheaf rerank: ${s.read.toLocaleString('en-US')} lists: ${s.reranked.toLocaleString('en-US')} re-ranked, ${s.fellBack.toLocaleString('en-US')} given their base 1-best, ${s.empty.toLocaleString('en-US')} empty lines`);
+    if (!quiet) console.error(`sheaf rerank: ${s.read.toLocaleString('en-US')} lists: ${s.reranked.toLocaleString('en-US')} re-ranked, ${s.fellBack.toLocaleString('en-US')} given their base 1-best, ${s.empty.toLocaleString('en-US')} empty lines${s.candidatesSkipped ? `; ${s.candidatesSkipped.toLocaleString('en-US')} candidate(s) left out as their trees do not parse` : ''}`);
     return 0;
   },
 };

@@ -354,7 +354,7 @@ async function prepareOnce(o: PrepareOptions): Promise<PrepareSummary> {
   removeIfExists(join(o.out, JOURNAL));
   const summary: PrepareSummary = { out: o.out, upToDate: false, resumedShards, shards: state.shards.length, ...totals, seconds: (Date.now() - started) / 1000 };
   const n = (x: number) => x.toLocaleString('en-US');
-  progress.done(`sheaf prepare: read ${n(read)} n-best lists: wrote ${n(state.written)} (${n(state.candidates)} candidates${totals.candidatesDropped ? `; ${n(totals.candidatesDropped)} dropped: words differ from the gold's` : ''}) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
+  progress.done(`sheaf prepare: read ${n(read)} n-best lists: wrote ${n(state.written)} (${n(state.candidates)} candidates${totals.candidatesDropped ? `; ${n(totals.candidatesDropped)} dropped: their tree does not parse or their words differ from the gold's` : ''}) in ${n(state.shards.length)} shard(s), rejected ${n(state.rejected)}${resumedShards ? `; resumed after ${n(resumedShards)} complete shard(s)` : ''}; ${n(totals.goldWithoutNbest)} gold sentence(s) had no n-best list; ${summary.seconds.toFixed(1)} s`);
   checkRejectRate(totals, maxRejectRate, o.out);
   return summary;
 }

@@ -3,7 +3,8 @@
  * - gold-free: parse candidates → extract + hash features (as differences
  *   from the reference candidate) — what re-ranking new lists also needs;
  * - scoring: parse the gold tree → PARSEVAL counts of every candidate
- *   (a candidate whose words differ from the gold's is dropped and reported,
+ *   (a candidate whose tree does not parse or whose words differ from the
+ *   gold's is dropped and reported,
  *   the others kept with their base ranks);
  * then encode (+ compress) the shard record. Pure apart from the pipeline it
  * is built from: no IO, no state across sentences except caches that do not
@@ -14,10 +15,10 @@ import { createVocabulary, type Vocabulary } from '../core/interner.js';
 import type { Tree } from '../core/tree.js';
 import type { SentenceVectors, VectorExtractor } from '../features/extract-vectors.js';
 import type { Pipeline } from '../pipeline/pipeline.js';
-import type { CandidateText, SentenceJob, SentenceResult } from '../records.js';
+import type { CandidateText, DroppedCandidate, SentenceJob, SentenceResult } from '../records.js';
 import { encodeShard } from '../stages/encode-shard.js';
 import { extractFeatures } from '../stages/extract-features.js';
-import { parseCandidates, parseNormalised } from '../stages/parse-candidates.js';
+import { parseCandidates, parseNormalised, parseUsableCandidates } from '../stages/parse-candidates.js';
 import { scoreOrDrop } from '../stages/score-candidates.js';
 
 /** parse → extract → hash, for one list: no gold needed. */
@@ -32,6 +33,7 @@ export function createFeaturiser(pipeline: Pipeline) {
       return { trees, vectors };
     },
     parse,
+    parseUsable: parseUsableCandidates(pipeline.parse),
     /** Vectors of some of a list's trees; `ranks` are their base ranks (positions in the list). */
     vectors(trees: readonly Tree[], candidates: readonly CandidateText[], ranks: readonly number[]): SentenceVectors {
       return extractor.sentence(trees.map((tree, j) => ({ tree, score: candidates[ranks[j]].score, rank: ranks[j] })));
@@ -59,15 +61,25 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
     if (++jobs % 20000 === 0) vocab = createVocabulary();
     try {
       const gold = parseNormalised(job.gold, vocab, pipeline.parse, 'the gold tree');
-      // A candidate whose words differ from the gold's is dropped, not the list; ranks stay the base parser's.
-      const all = featurise.parse(job.candidates, vocab);
-      const { gold: goldCount, kept, counts, dropped } = score(gold, all);
-      // Every candidate differs from the gold: the list and the gold sentence disagree (a wrong join,
-      // a re-tokenised input), not one bad candidate. The list is refused, as before candidates were dropped.
-      if (all.length > 0 && kept.length === 0) {
-        return { pos: job.pos, code: 'yield-mismatch', reason: `the words of every candidate (${all.length}) differ from the gold tree's; the first: ${dropped[0].reason}` };
+      // A candidate whose tree does not parse, or whose words differ from the gold's, is dropped, not the
+      // list; ranks stay the base parser's.
+      const parsed = featurise.parseUsable(job.candidates, vocab);
+      const scored = score(gold, parsed.trees);
+      const goldCount = scored.gold;
+      const counts = scored.counts;
+      const kept = scored.kept.map((k) => parsed.ranks[k]);
+      const mismatched = scored.dropped.map((d) => ({ ...d, rank: parsed.ranks[d.rank], reason: d.reason.replace(/^candidate \d+/, `candidate ${parsed.ranks[d.rank]}`) }));
+      const dropped = mergeByRank(parsed.unparsable, mismatched);
+      // No usable candidate at all: the list and the gold sentence disagree (a wrong join, a re-tokenised
+      // input) or the dump is garbled, not one bad candidate. The list is refused whole.
+      if (job.candidates.length > 0 && kept.length === 0) {
+        const n = dropped.length;
+        const first = `the first: ${dropped[0].reason}`;
+        if (parsed.unparsable.length === 0) return { pos: job.pos, code: 'yield-mismatch', reason: `the words of every candidate (${n}) differ from the gold tree's; ${first}` };
+        if (mismatched.length === 0) return { pos: job.pos, code: dropped[0].code, reason: `no candidate tree of the ${n} parses; ${first}` };
+        return { pos: job.pos, code: 'yield-mismatch', reason: `no candidate of the ${n} is usable: ${parsed.unparsable.length} do not parse, the words of ${mismatched.length} differ from the gold tree's; ${first}` };
       }
-      const trees = dropped.length === 0 ? all : kept.map((k) => all[k]);
+      const trees = dropped.length === 0 ? parsed.trees : scored.kept.map((k) => parsed.trees[k]);
       const vectors = featurise.vectors(trees, job.candidates, kept);
       const { bytes, rawBytes } = encode({
         id: job.id,
@@ -93,4 +105,11 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
     }
   };
   return { run, extractor: featurise.extractor, seenKeys: () => [...(featurise.extractor.names?.keys ?? [])] };
+}
+
+/** Two lists of dropped candidates, each in rank order, as one in rank order. */
+function mergeByRank(a: DroppedCandidate[], b: DroppedCandidate[]): DroppedCandidate[] {
+  if (a.length === 0) return b;
+  if (b.length === 0) return a;
+  return [...a, ...b].sort((x, y) => x.rank - y.rank);
 }

@@ -3,7 +3,8 @@
  * of every list, to stdout, in input order, exactly one line per input record
  * (so the output stays aligned with its input): the re-ranked tree, or — for
  * a record that cannot be re-ranked — its base 1-best when that parses, else
- * an empty line; stderr says why and counts them. Lists are featurised with
+ * an empty line; stderr says why and counts them. A candidate whose tree does
+ * not parse is left out of its list (named on stderr), not the list. Lists are featurised with
  * the model's own pipeline on the worker pool; memory is bounded by the batches
  * in flight.
  */
@@ -28,6 +29,8 @@ export interface RerankSummary {
   reranked: number;
   fellBack: number;
   empty: number;
+  /** Candidates left out of lists that were re-ranked, as their trees do not parse. */
+  candidatesSkipped: number;
 }
 
 type Item = { id: string | null; candidates: CandidateText[] | null; line: number | null; file: string; why?: string };
@@ -39,7 +42,7 @@ export async function runRerank(o: RerankOptions, write: (line: string) => Promi
   const pipeline = rebuildPipeline(model.info.pipeline.config, model.files);
   const init: RerankInit = { config: model.info.pipeline.config, files: model.files, weights: model.weights };
   const pool = await OrderedPool.start<RerankJob, RerankResult>({ size: workers, module: new URL('./rerank-worker.js', import.meta.url), init });
-  const summary: RerankSummary = { read: 0, reranked: 0, fellBack: 0, empty: 0 };
+  const summary: RerankSummary = { read: 0, reranked: 0, fellBack: 0, empty: 0, candidatesSkipped: 0 };
   const out: string[] = [];
   const where = (i: Item) => `${i.file}${i.line ? `:${i.line}` : ''}${i.id !== null ? ` (id \`${i.id}\`)` : ''}`;
   const consume = (i: Item, r: RerankResult | undefined) => {
@@ -54,8 +57,14 @@ export async function runRerank(o: RerankOptions, write: (line: string) => Promi
       if (r.rank >= 0) summary.fellBack++;
       else summary.empty++;
       warn(`sheaf rerank: ${where(i)}: not re-ranked (${r.why}); wrote ${r.rank >= 0 ? 'its base 1-best' : 'an empty line'}`);
-    } else summary.reranked++;
-    if (o.jsonl) out.push(JSON.stringify({ id: i.id, rank: r.rank >= 0 ? r.rank : null, score: r.score, tree, ...(r.score === null ? { why: r.why } : {}) }));
+    } else {
+      summary.reranked++;
+      for (const k of r.skipped) {
+        summary.candidatesSkipped++;
+        warn(`sheaf rerank: ${where(i)}: candidate ${k.rank} left out (${k.why}); re-ranked among the others`);
+      }
+    }
+    if (o.jsonl) out.push(JSON.stringify({ id: i.id, rank: r.rank >= 0 ? r.rank : null, score: r.score, tree, ...(r.score === null ? { why: r.why } : r.skipped.length > 0 ? { skipped: r.skipped.map((k) => k.rank) } : {}) }));
     else out.push(tree === null ? '' : tree.replace(/\s+/g, ' ').trim());
   };
   const batches = new OrderedBatches<Item, RerankJob, RerankResult>(pool, { batchSize: 8, maxInFlight: Math.max(2, pool.size * 3) }, consume);

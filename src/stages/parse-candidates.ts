@@ -4,7 +4,7 @@ import type { Vocabulary } from '../core/interner.js';
 import { normaliseTree } from '../core/normalise.js';
 import { parseTree } from '../core/read-brackets.js';
 import type { Tree } from '../core/tree.js';
-import type { CandidateText } from '../records.js';
+import type { CandidateText, DroppedCandidate } from '../records.js';
 import type { StageSpec } from './stage.js';
 
 export const parseCandidatesSpec: StageSpec = {
@@ -40,4 +40,27 @@ export function parseNormalised(text: string, vocab: Vocabulary, options: ParseO
 export function parseCandidates(options: ParseOptions) {
   return (candidates: readonly CandidateText[], vocab: Vocabulary): Tree[] =>
     candidates.map((c, k) => parseNormalised(c.tree, vocab, options, `candidate ${k}`));
+}
+
+/**
+ * Parses the candidates that parse: their trees and base ranks, and the
+ * others as dropped (base rank, the parse error's code and message). One
+ * tree a base parser garbled costs that candidate, not its list.
+ */
+export function parseUsableCandidates(options: ParseOptions) {
+  return (candidates: readonly CandidateText[], vocab: Vocabulary): { trees: Tree[]; ranks: number[]; unparsable: DroppedCandidate[] } => {
+    const trees: Tree[] = [];
+    const ranks: number[] = [];
+    const unparsable: DroppedCandidate[] = [];
+    candidates.forEach((c, k) => {
+      try {
+        trees.push(parseNormalised(c.tree, vocab, options, `candidate ${k}`));
+        ranks.push(k);
+      } catch (e) {
+        if (!(e instanceof DataError)) throw e;
+        unparsable.push({ rank: k, code: e.code, reason: e.reason });
+      }
+    });
+    return { trees, ranks, unparsable };
+  };
 }

@@ -2,6 +2,7 @@
 import { DataError } from '../core/errors.js';
 import { DEFAULT_SCORING, SentenceScorer, type BracketCounts, type ScoringOptions } from '../core/parseval.js';
 import type { Tree } from '../core/tree.js';
+import type { DroppedCandidate } from '../records.js';
 import type { StageSpec } from './stage.js';
 
 export const scoreCandidatesSpec: StageSpec = {
@@ -32,12 +33,6 @@ export function scoreCandidates(options: ScoringOptions) {
   };
 }
 
-/** A candidate left out of its list: its base rank and why. */
-export interface DroppedCandidate {
-  rank: number;
-  code: 'yield-mismatch';
-  reason: string;
-}
 
 /**
  * The same, keeping the list when some candidates' words differ from the
