@@ -14,6 +14,10 @@
  * - train: killed at spread times and while the model is written; a model
  *   folder never holds a model.json without the whole model, and a re-run
  *   gives the undisturbed run's weights.
+ * - merge and split start over when run again: killed at spread times, no
+ *   file under a final name ever differs from an undisturbed run's, and the
+ *   re-run ends with its bytes.
+ * rerank writes only to stdout and keeps no state: nothing to resume.
  */
 import { spawn, spawnSync } from 'node:child_process';
 import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -223,5 +227,82 @@ describe('crash and resume: train', () => {
       expect(readFileSync(join(out, 'weights.msgpack')).equals(weights)).toBe(true);
     }
     expect(kills).toBeGreaterThanOrEqual(5);
+  }, 240_000);
+});
+
+/**
+ * A command that starts over when run again (merge, split): killed at spread
+ * times of an undisturbed run, every file under a final name equals the
+ * undisturbed run's at every poll and after every kill (appended logs
+ * excepted), and the same command run again ends with its bytes.
+ */
+async function killAndRerun(args: (out: string) => string[], name: string, minKills: number): Promise<{ kills: number; violations: string[] }> {
+  const reference = join(dir, `${name}-reference`);
+  const t0 = Date.now();
+  const first = sheaf(...args(reference));
+  expect(first.status, first.stderr).toBe(0);
+  const took = Date.now() - t0;
+  const ref = files(reference);
+  const out = join(dir, `${name}-killed`);
+  const violations: string[] = [];
+  const check = () => {
+    if (!existsSync(out)) return;
+    let names: string[];
+    try {
+      names = readdirSync(out);
+    } catch {
+      return;
+    }
+    for (const f of names) {
+      if (f.endsWith('.tmp') || f === 'journal.jsonl') continue;
+      let bytes: Buffer;
+      try {
+        bytes = readFileSync(join(out, f));
+      } catch {
+        continue; // replaced or removed between the listing and the read
+      }
+      if (!ref.has(f) || !ref.get(f)!.equals(bytes)) violations.push(`${f} (${bytes.length} bytes) differs from the undisturbed run's`);
+    }
+  };
+  let kills = 0;
+  // From Node's start-up to the last write: kills land in every phase of the run.
+  const points = Array.from({ length: 12 }, (_, k) => ((k + 1) / 13) * took);
+  for (const at of points) {
+    const r = await runUntil(args(out), (t) => {
+      check();
+      return t >= at;
+    });
+    check();
+    if (r.killed) kills++;
+    else expect(r.status, r.stderr).toBe(0);
+  }
+  const last = sheaf(...args(out));
+  expect(last.status, last.stderr).toBe(0);
+  const got = files(out);
+  expect([...got.keys()]).toEqual([...ref.keys()]);
+  for (const [f, b] of ref) expect(got.get(f)!.equals(b), f).toBe(true);
+  expect(kills).toBeGreaterThanOrEqual(minKills);
+  return { kills, violations };
+}
+
+describe('crash and run again: merge', () => {
+  it('killed at spread times: never a file under a final name that differs from an undisturbed merge; a re-run gives its bytes', async () => {
+    const parts = [0, 1, 2, 3].map((I) => {
+      const p = join(dir, `part-${I}-of-4`);
+      const r = sheaf('prepare', '--gold', gold, '--nbest', ...data.dumps, '--plan', data.plan, '--pipeline', pipeline, '--part', `${I}/4`, '-o', p, '--quiet', '--workers', '1');
+      expect(r.status, r.stderr).toBe(0);
+      return p;
+    });
+    const { kills, violations } = await killAndRerun((out) => ['merge', ...parts, '-o', out, '--quiet'], 'merge', 6);
+    if (process.env.SHEAF_CRASH_REPORT) console.log(`merge: ${kills} kills`);
+    expect(violations).toEqual([]);
+  }, 240_000);
+});
+
+describe('crash and run again: split', () => {
+  it('killed at spread times: never a fold file or folds.json under its final name that differs from an undisturbed split; a re-run gives its bytes', async () => {
+    const { kills, violations } = await killAndRerun((out) => ['split', gold, '--folds', '5', '--write-train', '-o', out, '--quiet'], 'split', 6);
+    if (process.env.SHEAF_CRASH_REPORT) console.log(`split: ${kills} kills`);
+    expect(violations).toEqual([]);
   }, 240_000);
 });
