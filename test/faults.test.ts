@@ -6,7 +6,10 @@
  * sentence naming the path and what to do, never "internal error"; a failed
  * `prepare` keeps what a resume needs (completed shards, the journal, the
  * rejects so far) and nothing else, and the resumed run gives the bytes of
- * an undisturbed one. Tests that need root (mount, setpriv) are skipped with
+ * an undisturbed one; a failed `jackknife` keeps the outputs it finished,
+ * `split` and `merge` leave no file of theirs under a temporary name (and
+ * no folds.json or shards that a later run could mistake for its own); run
+ * again with room, each gives the bytes of an undisturbed run. Tests that need root (mount, setpriv) are skipped with
  * the reason in their name when it is not available.
  */
 import { spawnSync } from 'node:child_process';
@@ -181,5 +184,104 @@ describe('faults: a read-only file system', () => {
     expect(again.status, again.stderr).toBe(0);
     const t = sheaf(['train', shards, '-o', join(dir, 'model-from-ro'), '--quiet', '--cutoff', '1']);
     expect(t.status, t.stderr).toBe(0);
+  });
+});
+
+/** Every file under `d` (sub-folders too), by relative path → sha256. */
+function deepTree(d: string, prefix = ''): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const e of readdirSync(join(d, prefix), { withFileTypes: true })) {
+    const rel = prefix ? `${prefix}/${e.name}` : e.name;
+    if (e.isDirectory()) Object.assign(out, deepTree(d, rel));
+    else out[rel] = sha(join(d, rel));
+  }
+  return out;
+}
+/** Bytes a folder takes on a tmpfs (whole 4 KiB pages per file). */
+const pages = (d: string) => Object.keys(deepTree(d)).reduce((a, f) => a + Math.ceil(statSync(join(d, f)).size / 4096) * 4096 + 4096, 0);
+
+describe('faults: a full disk for split, jackknife and merge', () => {
+  const full = /the disk is full; free some space and run the same command again/;
+  let n = 0;
+  /**
+   * Runs `args(out)` once into a roomy folder (the reference), then on a tmpfs
+   * with about half the room it needs: status 1 naming the output, no file
+   * under a temporary name left anywhere, `check` on what is left; then with
+   * room the same command ends with the reference's bytes.
+   */
+  function fullDisk(args: (out: string) => string[], extra: RegExp, check: (out: string) => void = () => {}) {
+    const reference = join(dir, `full-reference-${n}`);
+    const r0 = sheaf(args(reference));
+    expect(r0.status, r0.stderr).toBe(0);
+    const small = join(dir, `full-small-${n++}`);
+    mountTmpfs(small, `size=${Math.floor(pages(reference) / 2 / 4096) * 4096}`);
+    const out = join(small, 'out');
+    const r = sheaf(args(out));
+    expectPlainFailure(r, out, full);
+    expect(r.stderr).toMatch(extra);
+    const left = Object.keys(deepTree(out));
+    expect(left.filter((f) => f.endsWith('.tmp'))).toEqual([]);
+    check(out);
+    expect(run('mount', ['-o', 'remount,size=64m', small]).status).toBe(0);
+    const again = sheaf(args(out));
+    expect(again.status, again.stderr).toBe(0);
+    return { reference, out, again };
+  }
+
+  it.skipIf(noMount !== null)(`split: no folds.json and no temporary file left; run again with room, the same bytes${skipped(noMount)}`, () => {
+    const { reference, out } = fullDisk((o) => ['split', gold, '--folds', '3', '--write-train', '-o', o, '--quiet'], /\(ENOSPC\)/, (o) => {
+      expect(existsSync(join(o, 'folds.json'))).toBe(false);
+    });
+    expect(deepTree(out)).toEqual(deepTree(reference));
+  });
+
+  it.skipIf(noMount !== null)(`jackknife: outputs finished before the disk filled are kept whole; run again with room, only the rest is made and the bytes are the same${skipped(noMount)}`, () => {
+    const plan = join(dir, 'jk-fault-plan');
+    expect(sheaf(['split', gold, '--folds', '3', '-o', plan, '--quiet']).status).toBe(0);
+    const args = (o: string) => ['jackknife', '--plan', plan, '--nbest', '20', '--workers', '1', '-o', o, '--quiet', '--json'];
+    let finishedBefore = 0;
+    const { reference, out, again } = fullDisk(args, /the outputs finished so far are kept/, (o) => {
+      // What jackknife.json lists is whole: the reference's bytes.
+      const state = existsSync(join(o, 'jackknife.json')) ? JSON.parse(readFileSync(join(o, 'jackknife.json'), 'utf8')) : { outputs: {} };
+      for (const f of Object.keys(state.outputs)) expect(sha(join(o, f))).toBe(sha(join(join(dir, `full-reference-${n - 1}`), f)));
+      finishedBefore = Object.keys(state.outputs).length;
+    });
+    expect(finishedBefore).toBeGreaterThanOrEqual(1);
+    expect(JSON.parse(again.stdout).upToDate).toBe(finishedBefore);
+    const dumps = (d: string) => Object.fromEntries(Object.entries(deepTree(d)).filter(([f]) => f.endsWith('.jsonl.gz')));
+    expect(dumps(out)).toEqual(dumps(reference));
+  });
+
+  it.skipIf(noMount !== null)(`merge: what it wrote is removed (it starts over); run again with room, the same bytes${skipped(noMount)}`, () => {
+    const parts = [0, 1, 2].map((I) => {
+      const p = join(dir, `fault-part-${I}`);
+      const r = sheaf([...prepareArgs(p), '--part', `${I}/3`]);
+      expect(r.status, r.stderr).toBe(0);
+      return p;
+    });
+    const { reference, out } = fullDisk((o) => ['merge', ...parts, '-o', o, '--quiet'], /\(ENOSPC\)/, (o) => {
+      expect(readdirSync(o).filter((f) => /^shard-|^manifest\.json$/.test(f))).toEqual([]);
+    });
+    expect(deepTree(out)).toEqual(deepTree(reference));
+  });
+});
+
+describe('faults: an unwritable folder for split, jackknife and merge', () => {
+  it.skipIf(noSetpriv !== null)(`each ends with status 1 naming the folder; nothing is written${skipped(noSetpriv)}`, () => {
+    const locked = join(dir, 'locked-3');
+    mkdirSync(locked);
+    chmodSync(locked, 0o555);
+    const plan = join(dir, 'plan-for-locked');
+    expect(sheaf(['split', gold, '--folds', '3', '-o', plan, '--quiet']).status).toBe(0);
+    const part = join(dir, 'part-for-locked');
+    expect(sheaf([...prepareArgs(part), '--part', '0/1']).status).toBe(0);
+    for (const d of [plan, part]) {
+      chmodSync(d, 0o755);
+      for (const f of readdirSync(d)) chmodSync(join(d, f), 0o644);
+    }
+    expectPlainFailure(sheaf(['split', gold, '--folds', '3', '-o', join(locked, 'plan'), '--quiet'], 65534), join(locked, 'plan'), /permission denied; make it writable/);
+    expectPlainFailure(sheaf(['jackknife', '--plan', plan, '--nbest', '5', '-o', join(locked, 'nbest'), '--quiet'], 65534), join(locked, 'nbest'), /permission denied; make it writable/);
+    expectPlainFailure(sheaf(['merge', part, '-o', join(locked, 'merged'), '--quiet'], 65534), join(locked, 'merged'), /permission denied; make it writable/);
+    expect(readdirSync(locked)).toEqual([]);
   });
 });

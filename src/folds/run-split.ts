@@ -10,7 +10,7 @@
  * same folder keeps a fold's recorded base model when its digest is unchanged.
  */
 import { createHash } from 'node:crypto';
-import { closeSync, existsSync, openSync, readFileSync, renameSync, writeSync } from 'node:fs';
+import { closeSync, existsSync, openSync, readFileSync, renameSync, rmSync, writeSync } from 'node:fs';
 import { join } from 'node:path';
 import { DataError, UsageError } from '../core/errors.js';
 import { IdTable } from '../core/id-table.js';
@@ -19,6 +19,7 @@ import { FOLDS_FORMAT, parseFoldPlan, type FoldEntry, type FoldPlan } from '../f
 import { saveFoldPlan, FOLDS_FILE } from '../io/fold-plan-file.js';
 import { readTreeTexts } from '../io/read-treebank.js';
 import { claimOutputFolder } from '../io/output-folder.js';
+import { environmentError, removeTemporaries } from '../io/fs-faults.js';
 import { RejectsLog } from '../io/rejects-log.js';
 import type { RejectRecord } from '../records.js';
 import { blockFold, hashFold, type FoldMethod } from './assign-folds.js';
@@ -75,18 +76,36 @@ class FoldFiles {
     const b = Buffer.from(this.parts[k].join(''), 'utf8');
     this.hashes[k].update(b);
     let off = 0;
-    while (off < b.length) off += writeSync(this.fds[k], b, off, b.length - off);
+    try {
+      while (off < b.length) off += writeSync(this.fds[k], b, off, b.length - off);
+    } catch (e) {
+      throw environmentError(e, this.paths[k], 'write');
+    }
     this.parts[k] = [];
     this.sizes[k] = 0;
   }
 
   finish(): string[] {
+    for (let k = 0; k < this.paths.length; k++) this.flush(k);
     return this.paths.map((p, k) => {
-      this.flush(k);
       closeSync(this.fds[k]);
+      this.fds[k] = -1;
       renameSync(`${p}.tmp`, p);
       return `sha256:${this.hashes[k].digest('hex')}`;
     });
+  }
+
+  /** Closes what is still open (after a failure; the caller removes the temporary files). */
+  abandon(): void {
+    for (let k = 0; k < this.fds.length; k++) {
+      if (this.fds[k] < 0) continue;
+      try {
+        closeSync(this.fds[k]);
+      } catch {
+        // Nothing more to do.
+      }
+      this.fds[k] = -1;
+    }
   }
 }
 
@@ -99,9 +118,22 @@ export async function runSplit(o: SplitOptions, log: (line: string) => void = ()
   if (method !== 'hash' && method !== 'blocks') throw new UsageError(`expected \`--method\` to be \`hash\` or \`blocks\`, got \`${method}\``);
   if (method === 'blocks' && o.gold === '-') throw new UsageError('`--method blocks` reads the treebank twice (to count it first): give a file, not `-`');
   claimOutputFolder(o.out, 'plan', { force: o.force });
+  const open: { abandon(): void }[] = [];
+  try {
+    return await splitInto(o, k, method, seed, open, log);
+  } catch (e) {
+    // split starts over when run again: leave no half-written file behind (a full disk stays full otherwise).
+    for (const f of open) f.abandon();
+    removeTemporaries(o.out);
+    throw environmentError(e, o.out, 'write', 'run the same command again');
+  }
+}
+
+async function splitInto(o: SplitOptions, k: number, method: FoldMethod, seed: number, open: { abandon(): void }[], log: (line: string) => void): Promise<SplitSummary> {
   const previous = existsSync(join(o.out, FOLDS_FILE)) ? safePlan(join(o.out, FOLDS_FILE)) : null;
 
   const rejects = new RejectsLog(o.out, 0);
+  open.push({ abandon: () => rejects.abandon() });
   const rejected: RejectRecord[] = [];
   const onBad = (e: DataError) => {
     const r: RejectRecord = { file: e.file ?? o.gold, line: e.line ?? null, column: e.column ?? null, id: e.id ?? null, code: e.code, reason: e.reason };
@@ -115,7 +147,9 @@ export async function runSplit(o: SplitOptions, log: (line: string) => void = ()
     if (total === 0) throw new UsageError(`\`${o.gold}\` holds no readable tree: nothing to split`);
   }
   const heldout = new FoldFiles(Array.from({ length: k }, (_, f) => join(o.out, heldoutName(f))));
+  open.push(heldout);
   const train = o.writeTrain ? new FoldFiles(Array.from({ length: k }, (_, f) => join(o.out, trainName(f)))) : null;
+  if (train) open.push(train);
   const ids: string[][] = Array.from({ length: k }, () => []);
   const seen = new IdTable();
   const firstLine: number[] = [];
@@ -138,10 +172,13 @@ export async function runSplit(o: SplitOptions, log: (line: string) => void = ()
     rejects.close();
     throw e;
   }
+  if (i < k) throw new UsageError(`expected \`--folds\` to be at most the number of sentences (${i}), got \`${k}\`: a fold would be empty`);
+  // The new fold files replace the old ones from here on: an earlier plan must not describe them if this run
+  // fails before its own folds.json is written.
+  rmSync(join(o.out, FOLDS_FILE), { force: true });
   const digests = heldout.finish();
   train?.finish();
   rejects.finish();
-  if (i < k) throw new UsageError(`expected \`--folds\` to be at most the number of sentences (${i}), got \`${k}\`: a fold would be empty`);
   let modelsKept = 0;
   const folds: FoldEntry[] = ids.map((list, f) => {
     const before = previous?.folds.find((x) => x.fold === f);

@@ -3,6 +3,7 @@ import { createHash } from 'node:crypto';
 import { closeSync, existsSync, fsyncSync, openSync, readSync, realpathSync, renameSync, unlinkSync, writeSync } from 'node:fs';
 import { join, sep } from 'node:path';
 import { UsageError } from '../core/errors.js';
+import { environmentError } from './fs-faults.js';
 
 /** sha256 of a file on disk, `sha256:<hex>`. */
 export function fileSha256(path: string): string {
@@ -38,7 +39,7 @@ export function writeFileAtomic(path: string, data: Uint8Array | string): void {
   } catch (e) {
     // A full disk must not stay full of half-written files.
     if (existsSync(tmp)) unlinkSync(tmp);
-    throw e;
+    throw environmentError(e, path, 'write');
   }
 }
 

@@ -3,8 +3,8 @@
  * user can act on: which path, what went wrong, what to do. Everything else
  * is passed on unchanged.
  */
-import { mkdirSync, statSync } from 'node:fs';
-import { dirname, resolve } from 'node:path';
+import { mkdirSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
 import { EnvironmentError } from '../core/errors.js';
 
 const WHAT: Record<string, string> = {
@@ -36,12 +36,25 @@ export function isEnvironmentFault(e: unknown): e is NodeJS.ErrnoException {
  * errors come back unchanged.
  */
 export function environmentError(e: unknown, path: string, doing: string, then = ''): unknown {
-  if (e instanceof EnvironmentError || !isEnvironmentFault(e)) return e;
+  if (e instanceof EnvironmentError) {
+    // Named deeper down (the file being written); the command adds how to go on.
+    if (!then || !passes(e.code) || e.message.includes(then)) return e;
+    const doingThere = /^cannot (.+?) `/.exec(e.message)?.[1] ?? doing;
+    return new EnvironmentError(e.code, e.path, sentence(e.code, e.path, doingThere, then), { cause: e.cause ?? e });
+  }
+  if (!isEnvironmentFault(e)) return e;
   const code = e.code!;
   const where = e.path ?? path;
-  // `then` (how to go on) follows faults that pass: a full disk, too many open files, a device error.
+  return new EnvironmentError(code, where, sentence(code, where, doing, then), { cause: e });
+}
+
+/** Faults that pass with time or room: a full disk, too many open files, a device error. */
+const passes = (code: string) => code === 'ENOSPC' || code === 'EDQUOT' || TRANSIENT.has(code);
+
+function sentence(code: string, where: string, doing: string, then: string): string {
+  // `then` (how to go on) follows faults that pass.
   const full = code === 'ENOSPC' || code === 'EDQUOT' ? `; free some space${then ? ` and ${then}` : ''}` : then && TRANSIENT.has(code) ? `; ${then}` : '';
-  return new EnvironmentError(code, where, `cannot ${doing} \`${where}\`: ${WHAT[code]}${full} (${code})`, { cause: e });
+  return `cannot ${doing} \`${where}\`: ${WHAT[code]}${full} (${code})`;
 }
 
 /** Runs `fn`; an environment fault becomes an EnvironmentError naming `path`. */
@@ -78,6 +91,28 @@ export function makeFolder(path: string): void {
       mkdirSync(missing[i]);
     } catch (e) {
       if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw environmentError(e, missing[i], 'make the folder');
+    }
+  }
+}
+
+/**
+ * Removes the files under a temporary name (`*.tmp`) directly in `dir`, but
+ * those `keep` names: after a failed run of a command that starts over, so a
+ * full disk does not stay full of half-written files. Never throws.
+ */
+export function removeTemporaries(dir: string, keep: (name: string) => boolean = () => false): void {
+  let names: string[];
+  try {
+    names = readdirSync(dir);
+  } catch {
+    return;
+  }
+  for (const f of names) {
+    if (!f.endsWith('.tmp') || keep(f)) continue;
+    try {
+      rmSync(join(dir, f), { force: true });
+    } catch {
+      // Left for the next run, which starts over.
     }
   }
 }

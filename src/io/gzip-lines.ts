@@ -4,14 +4,16 @@
  * finished; its sha256 as written.
  */
 import { createHash } from 'node:crypto';
-import { closeSync, openSync, renameSync, writeSync } from 'node:fs';
+import { closeSync, openSync, renameSync, rmSync, writeSync } from 'node:fs';
 import { gzipSync } from 'node:zlib';
+import { environmentError } from './fs-faults.js';
 
 export class GzipLines {
   private readonly fd: number;
   private parts: string[] = [];
   private size = 0;
   private readonly hash = createHash('sha256');
+  private closed = false;
   lines = 0;
 
   constructor(private readonly path: string, private readonly level = 6) {
@@ -30,7 +32,11 @@ export class GzipLines {
     const z = gzipSync(Buffer.from(this.parts.join(''), 'utf8'), { level: this.level });
     this.hash.update(z);
     let off = 0;
-    while (off < z.length) off += writeSync(this.fd, z, off, z.length - off);
+    try {
+      while (off < z.length) off += writeSync(this.fd, z, off, z.length - off);
+    } catch (e) {
+      throw environmentError(e, this.path, 'write');
+    }
     this.parts = [];
     this.size = 0;
   }
@@ -38,13 +44,22 @@ export class GzipLines {
   /** Closes and renames into place; returns `sha256:<hex>` of the file. */
   finish(): string {
     this.flush();
+    this.closed = true;
     closeSync(this.fd);
-    renameSync(`${this.path}.tmp`, this.path);
+    try {
+      renameSync(`${this.path}.tmp`, this.path);
+    } catch (e) {
+      throw environmentError(e, this.path, 'write');
+    }
     return `sha256:${this.hash.digest('hex')}`;
   }
 
-  /** Closes without renaming (a failed run leaves nothing under the final name). */
+  /** Closes and removes the temporary file (a failed run leaves nothing under the final name, nor a half-written file). */
   abandon(): void {
-    closeSync(this.fd);
+    if (!this.closed) {
+      this.closed = true;
+      closeSync(this.fd);
+    }
+    rmSync(`${this.path}.tmp`, { force: true });
   }
 }

@@ -8,6 +8,7 @@
 import { closeSync, existsSync, openSync, renameSync, statSync, truncateSync, writeSync } from 'node:fs';
 import { join } from 'node:path';
 import type { RejectRecord } from '../records.js';
+import { environmentError } from './fs-faults.js';
 
 export const REJECTS = 'rejects.jsonl';
 
@@ -21,6 +22,7 @@ export function rejectLine(r: RejectRecord): string {
 export class RejectsLog {
   private readonly fd: number;
   private readonly tmp: string;
+  private closed = false;
 
   /** Opens `dir/rejects.jsonl.tmp`, cut back to `keepBytes` (0: a fresh log). */
   constructor(private readonly dir: string, keepBytes: number) {
@@ -31,7 +33,11 @@ export class RejectsLog {
   }
 
   write(r: RejectRecord): void {
-    writeSync(this.fd, Buffer.from(rejectLine(r), 'utf8'));
+    try {
+      writeSync(this.fd, Buffer.from(rejectLine(r), 'utf8'));
+    } catch (e) {
+      throw environmentError(e, this.tmp, 'write');
+    }
   }
 
   /** Bytes written so far. */
@@ -41,12 +47,25 @@ export class RejectsLog {
 
   /** Closes the log and gives it its final name. */
   finish(): void {
+    this.closed = true;
     closeSync(this.fd);
     renameSync(this.tmp, join(this.dir, REJECTS));
   }
 
   /** Closes the log, leaving it under its temporary name (for a later resume). */
   close(): void {
+    this.closed = true;
     closeSync(this.fd);
+  }
+
+  /** Closes the log if it is still open (after a failure; never throws). */
+  abandon(): void {
+    if (this.closed) return;
+    this.closed = true;
+    try {
+      closeSync(this.fd);
+    } catch {
+      // Nothing more to do.
+    }
   }
 }

@@ -17,7 +17,7 @@ import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { basename, join } from 'node:path';
 import pLimit from 'p-limit';
-import { UsageError } from '../core/errors.js';
+import { EnvironmentError, UsageError } from '../core/errors.js';
 import { writeTree } from '../core/write-brackets.js';
 import { emptyJackknifeState, formatJackknifeState, parseJackknifeState, staleReason, type JackknifeState, type OutputRecord } from '../formats/jackknife-state.js';
 import { fileSha256, writeFileAtomic } from '../io/files.js';
@@ -33,7 +33,7 @@ import { heldoutName } from '../folds/run-split.js';
 import { externalParser, parseExternal, readExternalOutput, trainExternal, type ExternalParser } from './external.js';
 import type { ParseJob, ParseWorkerInit } from './parse-worker.js';
 import { normalisedTrees, sentencesOf, treebankDigest } from './treebank-parts.js';
-import { makeFolder } from '../io/fs-faults.js';
+import { environmentError, makeFolder } from '../io/fs-faults.js';
 
 export interface JackknifeOptions {
   plan: string;
@@ -92,6 +92,14 @@ interface Target {
 }
 
 export async function runJackknife(o: JackknifeOptions, log: (line: string) => void = () => {}): Promise<JackknifeSummary> {
+  try {
+    return await jackknifeOnce(o, log);
+  } catch (e) {
+    throw environmentError(e, o.out, 'write', 'run the same command again: the outputs finished so far are kept');
+  }
+}
+
+async function jackknifeOnce(o: JackknifeOptions, log: (line: string) => void): Promise<JackknifeSummary> {
   const started = Date.now();
   const nbest = o.nbest ?? 50;
   if (!Number.isInteger(nbest) || nbest < 1 || nbest > 10000) throw new UsageError(`expected \`--nbest\` to be an integer from 1 to 10000, got \`${o.nbest}\``);
@@ -163,16 +171,17 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
       : await embeddedTarget(settings!, t, model, nbest, o.out, workers);
     const out = new GzipLines(outFile);
     let sentences = 0;
+    let sha256: string;
     try {
       for await (const { id, candidates } of lists) {
         out.line(JSON.stringify({ id, fold: t.fold, source: model, candidates }));
         sentences++;
       }
+      sha256 = out.finish();
     } catch (e) {
       out.abandon();
       throw e;
     }
-    const sha256 = out.finish();
     const record: OutputRecord = { fold: t.fold, model, input, nbest, sentences, sha256, why };
     state.outputs[t.file] = record;
     if (o.only) {
@@ -192,7 +201,8 @@ export async function runJackknife(o: JackknifeOptions, log: (line: string) => v
     try {
       await runTarget(t);
     } catch (e) {
-      if (!(e instanceof UsageError)) throw e;
+      // A fault of the machine (a full disk …) would fail every output alike: stop at once.
+      if (!(e instanceof UsageError) || e instanceof EnvironmentError) throw e;
       failures.push(e.message);
       if (!o.quiet) log(`sheaf jackknife: ${t.fold === null ? t.file : `fold ${t.fold}`} failed: ${e.message}`);
     }

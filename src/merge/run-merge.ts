@@ -19,6 +19,7 @@ import { formatManifest, type NamesSummary, type ShardManifest } from '../format
 import { formatNames } from '../formats/names-file.js';
 import { decodePipelineFiles, PIPELINE_FILES } from '../formats/pipeline-files.js';
 import { writeFileAtomic } from '../io/files.js';
+import { environmentError } from '../io/fs-faults.js';
 import { claimOutputFolder } from '../io/output-folder.js';
 import { createProgress } from '../io/progress.js';
 import { MANIFEST } from '../io/read-shards.js';
@@ -60,6 +61,17 @@ const real = (d: string) => {
 };
 
 export async function runMerge(o: MergeOptions): Promise<MergeSummary> {
+  const claimed = { yes: false };
+  try {
+    return await mergeOnce(o, claimed);
+  } catch (e) {
+    // merge starts over when run again: what it wrote so far only fills the disk.
+    if (claimed.yes) clearPrepareOutput(o.out);
+    throw environmentError(e, o.out, 'write', 'run the same command again');
+  }
+}
+
+async function mergeOnce(o: MergeOptions, claimed: { yes: boolean }): Promise<MergeSummary> {
   const started = Date.now();
   if (o.parts.length === 0) throw new UsageError('expected the folders of the parts to merge (made by `sheaf prepare … --part I/N`)');
   const parts = checkPartSet(o.parts.map(loadPart));
@@ -80,6 +92,7 @@ export async function runMerge(o: MergeOptions): Promise<MergeSummary> {
   const pipeline = rebuildPipeline(m0.pipeline.config, files);
 
   claimOutputFolder(o.out, 'shards', { force: o.force });
+  claimed.yes = true;
   clearPrepareOutput(o.out);
   const progress = createProgress({ quiet: o.quiet ?? false, label: 'sheaf merge', totalBytes: null });
   const rejects = new RejectsLog(o.out, 0);
