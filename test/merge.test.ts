@@ -195,7 +195,7 @@ describe('prepare --part and merge', () => {
     const p = readdirSync(dir).find((f) => f.startsWith('part-1-of-3'))!;
     const d = join(dir, p);
     const info = JSON.parse(readFileSync(join(d, 'part.json'), 'utf8'));
-    expect(info).toMatchObject({ format: 'sheaf-part/1', part: 1, of: 3 });
+    expect(info).toMatchObject({ format: 'sheaf-part/2', part: 1, of: 3 });
     const side = info.sides.flatMap((s: any) => [...decodeMulti(readFileSync(join(d, s.file)))] as any[]);
     expect(side.map((r: any) => r[0])).toEqual(positions(d));
     const rejectPos = new BigUint64Array(new Uint8Array(readFileSync(join(d, 'rejects.positions'))).buffer);

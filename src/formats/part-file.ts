@@ -3,13 +3,16 @@
  * shard directory, so that `sheaf merge` can restore input order and re-cut
  * the shards exactly as one machine would:
  *
- * - `part.json` (`sheaf-part/1`): which part of how many, the records of all
- *   inputs and of this part's share, and the side files with their sha256.
+ * - `part.json` (`sheaf-part/2`): which part of how many, the records of all
+ *   inputs and of this part's share, and the side files, the reject
+ *   positions and rejects.jsonl with their sha256 (format 1 lacked the last,
+ *   so a damaged rejects.jsonl went into the merge unnoticed).
  *   Written just before manifest.json: a part with both is complete.
  *
- *     {"format": "sheaf-part/1", "part": 1, "of": 4, "read": 90, "share": 22,
+ *     {"format": "sheaf-part/2", "part": 1, "of": 4, "read": 90, "share": 22,
  *      "sides": [{"file": "shard-00000.part.msgpack", "sentences": 22, "sha256": "sha256:…"}],
  *      "rejectPositions": {"file": "rejects.positions", "count": 3, "sha256": "sha256:…"},
+ *      "rejects": {"file": "rejects.jsonl", "sha256": "sha256:…"},
  *      "keys": {"file": "part-keys.jsonl", "count": 5120, "sha256": "sha256:…"} | null}
  *
  * - `shard-NNNNN.part.msgpack`, one per shard: per sentence, in shard order,
@@ -33,7 +36,7 @@ import { DataError, UsageError } from '../core/errors.js';
 import type { ModelIdentity } from '../records.js';
 import { MsgpackWriter, type Decoded } from './msgpack.js';
 
-export const PART_FORMAT = 'sheaf-part/1';
+export const PART_FORMAT = 'sheaf-part/2';
 export const PART_FILE = 'part.json';
 export const REJECT_POSITIONS = 'rejects.positions';
 export const PART_KEYS = 'part-keys.jsonl';
@@ -79,6 +82,8 @@ export interface PartInfo {
   share: number;
   sides: (PartFileEntry & { sentences: number })[];
   rejectPositions: PartFileEntry & { count: number };
+  /** rejects.jsonl, gold rejects included. */
+  rejects: PartFileEntry;
   keys: (PartFileEntry & { count: number }) | null;
 }
 
@@ -116,6 +121,7 @@ export function parsePartInfo(text: string, dir: string): PartInfo {
   });
   entry(raw.rejectPositions, REJECT_POSITIONS, 'the reject positions');
   if (!count(raw.rejectPositions.count)) return fail('`rejectPositions.count` is not a count');
+  entry(raw.rejects, 'rejects.jsonl', 'the rejects');
   if (raw.keys !== null) {
     entry(raw.keys, PART_KEYS, 'the key list');
     if (!count(raw.keys.count)) return fail('`keys.count` is not a count');

@@ -115,5 +115,22 @@ export function checkPartSet(parts: PartFolder[]): PartFolder[] {
     const shown = missing.length > 20 ? `${missing.slice(0, 20).join(', ')} … (${missing.length} in all)` : missing.join(', ');
     throw new UsageError(`missing part${missing.length > 1 ? 's' : ''} ${shown} of ${of} (given: ${[...byIndex.keys()].sort((a, b) => a - b).map((i) => `${i} in \`${byIndex.get(i)![0].dir}\``).join(', ')}); give the folders of all ${of} parts`);
   }
-  return [...parts].sort((a, b) => a.info.part - b.info.part);
+  const sorted = [...parts].sort((a, b) => a.info.part - b.info.part);
+  // What the merged manifest takes from part 0 must be what every part says (a damaged manifest.json that
+  // still parses would otherwise go into the merge unnoticed).
+  const first = shared(sorted[0]);
+  for (const p of sorted.slice(1)) {
+    const mine = shared(p);
+    const field = Object.keys(first).find((k) => JSON.stringify(first[k]) !== JSON.stringify(mine[k])) ?? Object.keys(mine).find((k) => !(k in first));
+    if (field !== undefined) {
+      throw new UsageError(`the manifest.json of \`${sorted[0].dir}\` (part 0) and of \`${p.dir}\` (part ${p.info.part}) disagree on \`${field}\`: one is damaged, or the parts were made with different command lines; make the parts again with one \`sheaf prepare … --part I/N\` command line`);
+    }
+  }
+  return sorted;
+}
+
+/** The fields of a part's manifest that are the whole run's, not the part's own. */
+function shared(p: PartFolder): Record<string, unknown> {
+  const { folds: _f, shards: _s, totals, rejects: _r, names, ...rest } = p.manifest;
+  return { ...rest, goldTotals: [totals.goldTrees, totals.goldRejected, totals.goldWithoutNbest], names: names ? { file: names.file, perBucket: names.perBucket } : null };
 }

@@ -139,7 +139,7 @@ export class PartStream {
   /** Checks the reject files were read whole and match their sha256 (after next() gave null). */
   finish(): void {
     if (this.rejects.line() !== null) this.fail(`${REJECTS} holds more lines than its ${this.part.manifest.rejects.count} rejects`);
-    this.rejects.close();
+    this.checkClosed(this.rejects, this.part.info.rejects.sha256, REJECTS);
     this.checkClosed(this.positions, this.part.info.rejectPositions.sha256, this.part.info.rejectPositions.file);
   }
 }

@@ -11,6 +11,7 @@ import { MsgpackWriter } from '../formats/msgpack.js';
 import { encodeSideRecord, formatPartInfo, parsePartInfo, PART_FILE, PART_FORMAT, PART_KEYS, REJECT_POSITIONS, shareSize, sideName, type PartInfo, type PartSpec } from '../formats/part-file.js';
 import type { WriterState } from '../formats/journal.js';
 import { fileSha256, writeFileAtomic } from '../io/files.js';
+import { REJECTS } from '../io/rejects-log.js';
 import type { ModelIdentity } from '../records.js';
 
 export { parsePartSpec, type PartSpec } from '../formats/part-file.js';
@@ -63,7 +64,7 @@ export class PartOutput {
     closeSync(this.fd);
   }
 
-  /** Writes the key list and part.json (call just before the manifest). */
+  /** Writes the key list and part.json (call just before the manifest, once rejects.jsonl has its final name). */
   finish(read: number, state: WriterState, keys: string[] | null): PartInfo {
     closeSync(this.fd);
     const positions = join(this.dir, REJECT_POSITIONS);
@@ -82,6 +83,7 @@ export class PartOutput {
       share: shareSize(read, this.spec),
       sides: state.shards.map((s, k) => ({ file: sideName(k), sentences: s.sentences, sha256: fileSha256(join(this.dir, sideName(k))) })),
       rejectPositions: { file: REJECT_POSITIONS, count: statSync(positions).size / 8, sha256: fileSha256(positions) },
+      rejects: { file: REJECTS, sha256: fileSha256(join(this.dir, REJECTS)) },
       keys: keyEntry,
     };
     writeFileAtomic(join(this.dir, PART_FILE), formatPartInfo(info));

@@ -23,6 +23,7 @@ import { inspectModel } from '../../src/inspect/inspect-model.js';
 import { inspectShards } from '../../src/inspect/inspect-shards.js';
 import { readManifest } from '../../src/io/read-shards.js';
 import { runPrepare } from '../../src/prepare/run-prepare.js';
+import { runMerge } from '../../src/merge/run-merge.js';
 import { runRerank } from '../../src/rerank/run-rerank.js';
 import { runTrain } from '../../src/train/run-train.js';
 import { damage, damageArb, layoutTree, treeArb, writeNode, type TreeNode } from './arbitraries.js';
@@ -135,16 +136,18 @@ describe('fuzz: prepare on random inputs', () => {
 let shards: string;
 let model: string;
 let dump: string;
+let gold: string;
+let pipeline: string;
 beforeAll(async () => {
   const trees = fc.sample(treeArb.filter((t) => leaves(t).length > 2), { seed: 3, numRuns: 40 });
-  const gold = fresh('gold.trees');
+  gold = fresh('gold.trees');
   writeFileSync(gold, trees.map((t) => layoutTree(t, true, false)).join('\n') + '\n');
   dump = fresh('dump.jsonl');
   writeFileSync(dump, trees.map((t, k) => JSON.stringify({ id: String(k + 1), candidates: [{ tree: flat(t), score: -1 }, { tree: writeNode(t), score: -2 }] })).join('\n') + '\n');
   const p = JSON.parse(readFileSync(fileURLToPath(new URL('../../pipelines/default.json', import.meta.url)), 'utf8'));
   p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 10;
   p.stages.find((s: any) => s.stage === 'hash-features.v2').names = 2;
-  const pipeline = fresh('pipeline.json');
+  pipeline = fresh('pipeline.json');
   writeFileSync(pipeline, JSON.stringify(p));
   shards = fresh('shards');
   await runPrepare({ gold, nbest: [dump], pipeline, out: shards, workers: 0, quiet: true });
@@ -196,6 +199,51 @@ describe('fuzz: train, eval, export, inspect, rerank on damaged directories', ()
     // Damage was seen: some commands failed (typed), most of the 6 × 120 ran.
     expect(failures).toBeGreaterThan(10);
     expect(failures).toBeLessThan(6 * runs(120).numRuns);
+  });
+});
+
+describe('fuzz: merge on damaged parts', () => {
+  let parts: string[];
+  let merged: string;
+  beforeAll(async () => {
+    parts = [];
+    for (let I = 0; I < 2; I++) {
+      const out = fresh(`part-${I}`);
+      await runPrepare({ gold, nbest: [dump], pipeline, out, workers: 0, quiet: true, part: { index: I, of: 2 } });
+      parts.push(out);
+    }
+    merged = fresh('merged');
+    await runMerge({ parts, out: merged, quiet: true });
+  });
+  /** Every file of a folder, by name → bytes. */
+  const contents = (d: string) => new Map(readdirSync(d).sort().map((f) => [f, readFileSync(join(d, f))]));
+
+  it('a file of a part damaged (bytes, cut, JSON): merge fails typed, or writes exactly the undamaged merge', async () => {
+    const reference = contents(merged);
+    let refused = 0;
+    await fc.assert(fc.asyncProperty(fc.nat({ max: 1 }), fc.nat(), damageArb.filter((d) => d.length > 0), async (which, pick, edits) => {
+      const ps = parts.map((p) => {
+        const c = fresh('part');
+        cpSync(p, c, { recursive: true });
+        return c;
+      });
+      const files = readdirSync(ps[which]).sort();
+      const f = join(ps[which], files[pick % files.length]);
+      writeFileSync(f, damage(readFileSync(f), edits));
+      const out = fresh('merged');
+      try {
+        await runMerge({ parts: ps, out, quiet: true });
+        // Merged in spite of the damage: then the damage touched nothing merge relies on, and the output is right.
+        const got = contents(out);
+        expect([...got.keys()]).toEqual([...reference.keys()]);
+        for (const [name, bytes] of reference) expect(got.get(name)!.equals(bytes), `${files[pick % files.length]} damaged: ${name} differs`).toBe(true);
+      } catch (e) {
+        expectTyped(e);
+        refused++;
+      }
+      drop(out, ...ps);
+    }), runs(150, { timeout: 30_000 }));
+    expect(refused).toBeGreaterThan(10);
   });
 });
 
