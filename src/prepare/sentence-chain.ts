@@ -64,11 +64,7 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
       // A candidate whose tree does not parse, or whose words differ from the gold's, is dropped, not the
       // list; ranks stay the base parser's.
       const parsed = featurise.parseUsable(job.candidates, vocab);
-      const scored = score(gold, parsed.trees);
-      const goldCount = scored.gold;
-      const counts = scored.counts;
-      const kept = scored.kept.map((k) => parsed.ranks[k]);
-      const mismatched = scored.dropped.map((d) => ({ ...d, rank: parsed.ranks[d.rank], reason: d.reason.replace(/^candidate \d+/, `candidate ${parsed.ranks[d.rank]}`) }));
+      const { gold: goldCount, kept, counts, dropped: mismatched } = score(gold, parsed.trees, parsed.ranks);
       const dropped = mergeByRank(parsed.unparsable, mismatched);
       // No usable candidate at all: the list and the gold sentence disagree (a wrong join, a re-tokenised
       // input) or the dump is garbled, not one bad candidate. The list is refused whole.
@@ -79,7 +75,8 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
         if (mismatched.length === 0) return { pos: job.pos, code: dropped[0].code, reason: `no candidate tree of the ${n} parses; ${first}` };
         return { pos: job.pos, code: 'yield-mismatch', reason: `no candidate of the ${n} is usable: ${parsed.unparsable.length} do not parse, the words of ${mismatched.length} differ from the gold tree's; ${first}` };
       }
-      const trees = dropped.length === 0 ? parsed.trees : scored.kept.map((k) => parsed.trees[k]);
+      const gone = new Set(mismatched.map((d) => d.rank));
+      const trees = gone.size === 0 ? parsed.trees : parsed.trees.filter((_, k) => !gone.has(parsed.ranks[k]));
       const vectors = featurise.vectors(trees, job.candidates, kept);
       const { bytes, rawBytes } = encode({
         id: job.id,

@@ -36,22 +36,24 @@ export function scoreCandidates(options: ScoringOptions) {
 
 /**
  * The same, keeping the list when some candidates' words differ from the
- * gold's: those are dropped (with why), the others scored. `kept` holds the
- * positions (base ranks) of the scored candidates, in order.
+ * gold's: those are dropped (with why), the others scored. `ranks` are the
+ * candidates' base ranks (default: their positions); `kept` holds those of
+ * the scored candidates, in order.
  */
 export function scoreOrDrop(options: ScoringOptions) {
-  return (gold: Tree, candidates: readonly Tree[]): { gold: number; kept: number[]; counts: BracketCounts[]; dropped: DroppedCandidate[] } => {
+  return (gold: Tree, candidates: readonly Tree[], ranks?: readonly number[]): { gold: number; kept: number[]; counts: BracketCounts[]; dropped: DroppedCandidate[] } => {
     const scorer = new SentenceScorer(gold, options);
     const kept: number[] = [];
     const counts: BracketCounts[] = [];
     const dropped: DroppedCandidate[] = [];
     candidates.forEach((c, k) => {
+      const rank = ranks ? ranks[k] : k;
       try {
         counts.push(scorer.score(c));
-        kept.push(k);
+        kept.push(rank);
       } catch (e) {
         if (!(e instanceof DataError) || e.code !== 'yield-mismatch') throw e;
-        dropped.push({ rank: k, code: e.code, reason: `candidate ${k}: ${e.reason}` });
+        dropped.push({ rank, code: e.code, reason: `candidate ${rank}: ${e.reason}` });
       }
     });
     return { gold: scorer.goldBrackets, kept, counts, dropped };
