@@ -225,7 +225,7 @@ describe('faults: a full disk for split, jackknife and merge', () => {
     expect(run('mount', ['-o', 'remount,size=64m', small]).status).toBe(0);
     const again = sheaf(args(out));
     expect(again.status, again.stderr).toBe(0);
-    return { reference, out, again };
+    return { reference, out, again, failure: r };
   }
 
   it.skipIf(noMount !== null)(`split: no folds.json and no temporary file left; run again with room, the same bytes${skipped(noMount)}`, () => {
@@ -235,18 +235,49 @@ describe('faults: a full disk for split, jackknife and merge', () => {
     expect(deepTree(out)).toEqual(deepTree(reference));
   });
 
+  it.skipIf(noMount !== null)(`split again over a plan, and the disk fills: the earlier plan stays whole (folds.json and its fold files)${skipped(noMount)}`, () => {
+    const plan = join(dir, 'resplit-ref');
+    expect(sheaf(['split', gold, '--folds', '3', '-o', plan, '--quiet']).status).toBe(0);
+    const small = join(dir, 'resplit-small');
+    mountTmpfs(small, `size=${Math.ceil((pages(plan) * 1.5) / 4096) * 4096}`);
+    const out = join(small, 'plan');
+    expect(sheaf(['split', gold, '--folds', '3', '-o', out, '--quiet']).status).toBe(0);
+    const before = deepTree(out);
+    // Fill the rest of the disk, then split again another way.
+    const filler = join(small, 'filler');
+    spawnSync('dd', ['if=/dev/zero', `of=${filler}`, 'bs=4096'], { encoding: 'utf8' });
+    const r = sheaf(['split', gold, '--folds', '3', '--seed', '1', '-o', out, '--quiet']);
+    expectPlainFailure(r, out, full);
+    expect(deepTree(out)).toEqual(before);
+  });
+
+  it('a failed split removes its own temporary files only, not a user\'s', () => {
+    const out = join(dir, 'split-user-tmp');
+    mkdirSync(out);
+    writeFileSync(join(out, 'notes.tmp'), 'warden notes');
+    const r = sheaf(['split', gold, '--folds', '200', '-o', out, '--force', '--quiet']);
+    expect(r.status, r.stderr).toBe(1);
+    expect(r.stderr).toMatch(/at most the number of sentences/);
+    expect(readdirSync(out).sort()).toEqual(['notes.tmp']);
+    expect(readFileSync(join(out, 'notes.tmp'), 'utf8')).toBe('warden notes');
+  });
+
   it.skipIf(noMount !== null)(`jackknife: outputs finished before the disk filled are kept whole; run again with room, only the rest is made and the bytes are the same${skipped(noMount)}`, () => {
     const plan = join(dir, 'jk-fault-plan');
     expect(sheaf(['split', gold, '--folds', '3', '-o', plan, '--quiet']).status).toBe(0);
     const args = (o: string) => ['jackknife', '--plan', plan, '--nbest', '20', '--workers', '1', '-o', o, '--quiet', '--json'];
     let finishedBefore = 0;
+    let models = 0;
     const { reference, out, again } = fullDisk(args, /the outputs finished so far are kept/, (o) => {
       // What jackknife.json lists is whole: the reference's bytes.
       const state = existsSync(join(o, 'jackknife.json')) ? JSON.parse(readFileSync(join(o, 'jackknife.json'), 'utf8')) : { outputs: {} };
       for (const f of Object.keys(state.outputs)) expect(sha(join(o, f))).toBe(sha(join(join(dir, `full-reference-${n - 1}`), f)));
       finishedBefore = Object.keys(state.outputs).length;
+      models = existsSync(join(o, 'models')) ? readdirSync(join(o, 'models')).filter((f) => f.endsWith('.pcfg')).length : 0;
     });
     expect(finishedBefore).toBeGreaterThanOrEqual(1);
+    // No fold queued after the fault started: models of at most the finished folds and the one that failed.
+    expect(models).toBeLessThanOrEqual(finishedBefore + 1);
     expect(JSON.parse(again.stdout).upToDate).toBe(finishedBefore);
     const dumps = (d: string) => Object.fromEntries(Object.entries(deepTree(d)).filter(([f]) => f.endsWith('.jsonl.gz')));
     expect(dumps(out)).toEqual(dumps(reference));
@@ -259,9 +290,11 @@ describe('faults: a full disk for split, jackknife and merge', () => {
       expect(r.status, r.stderr).toBe(0);
       return p;
     });
-    const { reference, out } = fullDisk((o) => ['merge', ...parts, '-o', o, '--quiet'], /\(ENOSPC\)/, (o) => {
+    const { reference, out, failure } = fullDisk((o) => ['merge', ...parts, '-o', o, '--quiet'], /\(ENOSPC\)/, (o) => {
       expect(readdirSync(o).filter((f) => /^shard-|^manifest\.json$/.test(f))).toEqual([]);
     });
+    // The message names the file being written (by its final name), not only the folder.
+    expect(failure.stderr).toMatch(/cannot write `[^`]*\/out\/(shard-\d{5}\.(counts\.)?msgpack(\.gz)?|rejects\.jsonl|manifest\.json|pipeline-files\.msgpack)`/);
     expect(deepTree(out)).toEqual(deepTree(reference));
   });
 });

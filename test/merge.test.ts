@@ -300,6 +300,15 @@ describe('prepare --part and merge', () => {
     expectSameFolder(out, oneMachine);
   });
 
+  it('refuses parts that name the same inputs by other paths, saying which (rejects and manifest record paths)', async () => {
+    // Part 1 run from elsewhere: the same files, spelled another way.
+    const other = (f: string) => f.replace(/\/([^/]+)$/, '/./$1');
+    const p1 = fresh('other-paths');
+    await prepare({ out: p1, part: { index: 1, of: 2 }, gold: other(gold), nbest: dumps.map(other), plan: other(data.plan) });
+    const out = fresh('merged-other-paths');
+    await expect(runMerge({ parts: [partsOf[2][0], p1], out, quiet: true })).rejects.toThrow(new RegExp(`name the same input by different paths \\(\`${gold}\` and \`${other(gold).replace(/\./g, '\\.')}\`\\); rejects\\.jsonl and the manifest record input paths`));
+  });
+
   it('refuses a part whose files were changed after it was written', async () => {
     const ps = [partsOf[2][0], fresh('changed')];
     cpSync(partsOf[2][1], ps[1], { recursive: true });

@@ -49,6 +49,8 @@ export interface SplitSummary {
 }
 
 export const heldoutName = (k: number) => `heldout-${k}.jsonl`;
+/** The files split writes under a temporary name (what a failed split removes; nothing else in the folder). */
+const SPLIT_TEMPORARY = /^(folds\.json|heldout-\d+\.jsonl|train-\d+\.jsonl|rejects\.jsonl)\.tmp$/;
 export const trainName = (k: number) => `train-${k}.jsonl`;
 
 /** Writes lines to several files, buffered, each under NAME.tmp until finished. */
@@ -85,11 +87,17 @@ class FoldFiles {
     this.sizes[k] = 0;
   }
 
-  finish(): string[] {
+  /** Writes what is buffered (the last writes: a full disk shows here, before any file is renamed). */
+  flushAll(): void {
     for (let k = 0; k < this.paths.length; k++) this.flush(k);
+  }
+
+  /** Closes every file and gives it its final name (after flushAll); their sha256. */
+  rename(): string[] {
     return this.paths.map((p, k) => {
-      closeSync(this.fds[k]);
+      const fd = this.fds[k];
       this.fds[k] = -1;
+      closeSync(fd);
       renameSync(`${p}.tmp`, p);
       return `sha256:${this.hashes[k].digest('hex')}`;
     });
@@ -124,7 +132,7 @@ export async function runSplit(o: SplitOptions, log: (line: string) => void = ()
   } catch (e) {
     // split starts over when run again: leave no half-written file behind (a full disk stays full otherwise).
     for (const f of open) f.abandon();
-    removeTemporaries(o.out);
+    removeTemporaries(o.out, SPLIT_TEMPORARY);
     throw environmentError(e, o.out, 'write', 'run the same command again');
   }
 }
@@ -173,11 +181,13 @@ async function splitInto(o: SplitOptions, k: number, method: FoldMethod, seed: n
     throw e;
   }
   if (i < k) throw new UsageError(`expected \`--folds\` to be at most the number of sentences (${i}), got \`${k}\`: a fold would be empty`);
-  // The new fold files replace the old ones from here on: an earlier plan must not describe them if this run
-  // fails before its own folds.json is written.
+  heldout.flushAll();
+  train?.flushAll();
+  // Every byte is written. The new fold files replace the old ones from here on: an earlier plan must not
+  // describe them if this run fails before its own folds.json is written.
   rmSync(join(o.out, FOLDS_FILE), { force: true });
-  const digests = heldout.finish();
-  train?.finish();
+  const digests = heldout.rename();
+  train?.rename();
   rejects.finish();
   let modelsKept = 0;
   const folds: FoldEntry[] = ids.map((list, f) => {

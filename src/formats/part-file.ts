@@ -105,7 +105,10 @@ export function parsePartInfo(text: string, dir: string): PartInfo {
     return fail(`is not valid JSON (${(e as Error).message})`);
   }
   if (!raw || typeof raw !== 'object' || Array.isArray(raw)) return fail('is not a JSON object');
-  if (raw.format !== PART_FORMAT) return fail(`says format ${JSON.stringify(raw.format)}; this sheaf reads \`${PART_FORMAT}\``);
+  if (raw.format !== PART_FORMAT) {
+    const other = typeof raw.format === 'string' && raw.format.startsWith('sheaf-part/') ? ': another version of sheaf made this part; make it again with this one' : '';
+    return fail(`says format ${JSON.stringify(raw.format)}; this sheaf reads \`${PART_FORMAT}\`${other}`);
+  }
   const count = (v: unknown) => Number.isSafeInteger(v) && (v as number) >= 0;
   if (!count(raw.of) || raw.of < 1 || !count(raw.part) || raw.part >= raw.of) return fail('has no valid `part` and `of` (expected 0 ≤ part < of)');
   if (!count(raw.read) || !count(raw.share) || raw.share !== shareSize(raw.read, { index: raw.part, of: raw.of })) return fail('has no valid `read` and `share`');

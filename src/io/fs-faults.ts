@@ -44,7 +44,8 @@ export function environmentError(e: unknown, path: string, doing: string, then =
   }
   if (!isEnvironmentFault(e)) return e;
   const code = e.code!;
-  const where = e.path ?? path;
+  // Files are written under NAME.tmp and renamed: the user knows them by NAME.
+  const where = e.path ? e.path.replace(/\.tmp$/, '') : path;
   return new EnvironmentError(code, where, sentence(code, where, doing, then), { cause: e });
 }
 
@@ -96,11 +97,12 @@ export function makeFolder(path: string): void {
 }
 
 /**
- * Removes the files under a temporary name (`*.tmp`) directly in `dir`, but
- * those `keep` names: after a failed run of a command that starts over, so a
- * full disk does not stay full of half-written files. Never throws.
+ * Removes the files of a command's own under a temporary name (`owned`,
+ * names ending in `.tmp`) directly in `dir`: after a failed run of a command
+ * that starts over, so a full disk does not stay full of half-written
+ * files. Other files, the user's among them, are left alone. Never throws.
  */
-export function removeTemporaries(dir: string, keep: (name: string) => boolean = () => false): void {
+export function removeTemporaries(dir: string, owned: RegExp): void {
   let names: string[];
   try {
     names = readdirSync(dir);
@@ -108,7 +110,7 @@ export function removeTemporaries(dir: string, keep: (name: string) => boolean =
     return;
   }
   for (const f of names) {
-    if (!f.endsWith('.tmp') || keep(f)) continue;
+    if (!f.endsWith('.tmp') || !owned.test(f)) continue;
     try {
       rmSync(join(dir, f), { force: true });
     } catch {

@@ -36,7 +36,7 @@ export class RejectsLog {
     try {
       writeSync(this.fd, Buffer.from(rejectLine(r), 'utf8'));
     } catch (e) {
-      throw environmentError(e, this.tmp, 'write');
+      throw environmentError(e, join(this.dir, REJECTS), 'write');
     }
   }
 

@@ -13,6 +13,7 @@ import type { WriterState } from '../formats/journal.js';
 import type { ModelIdentity } from '../records.js';
 import { shardFull, type ShardLimits } from '../stages/write-shards.js';
 import { sha256, writeFileAtomic } from './files.js';
+import { environmentError, onPath } from './fs-faults.js';
 
 export const shardName = (k: number, compressed: boolean) => `shard-${String(k).padStart(5, '0')}.msgpack${compressed ? '.gz' : ''}`;
 export const countsName = (k: number) => `shard-${String(k).padStart(5, '0')}.counts.msgpack`;
@@ -90,7 +91,8 @@ export class ShardWriter {
 
   private open(): void {
     const k = this.state.shards.length;
-    this.fd = openSync(join(this.dir, `${shardName(k, this.options.compressed)}.tmp`), 'w');
+    const file = shardName(k, this.options.compressed);
+    this.fd = onPath(join(this.dir, file), 'write', () => openSync(join(this.dir, `${file}.tmp`), 'w'));
     this.hash = createHash('sha256');
     this.shardBytes = 0;
     this.shardRaw = 0;
@@ -105,7 +107,12 @@ export class ShardWriter {
     if (this.pendingBytes === 0) return;
     const all = Buffer.concat(this.pending, this.pendingBytes);
     let off = 0;
-    while (off < all.length) off += writeSync(this.fd, all, off, all.length - off);
+    try {
+      while (off < all.length) off += writeSync(this.fd, all, off, all.length - off);
+    } catch (e) {
+      // A write carries no path of its own: name the shard.
+      throw environmentError(e, join(this.dir, shardName(this.state.shards.length, this.options.compressed)), 'write');
+    }
     this.pending = [];
     this.pendingBytes = 0;
   }
@@ -134,7 +141,7 @@ export class ShardWriter {
     const countsBytes = encodeCounts({ bits: this.options.bits, idx, count: cnt, offsets: Float64Array.from(this.offsets) });
     writeFileAtomic(join(this.dir, countsName(k)), countsBytes);
     const file = shardName(k, this.options.compressed);
-    renameSync(join(this.dir, `${file}.tmp`), join(this.dir, file));
+    onPath(join(this.dir, file), 'write', () => renameSync(join(this.dir, `${file}.tmp`), join(this.dir, file)));
     const templates: Record<string, [number, number]> = {};
     this.options.templates.forEach((id, t) => {
       templates[id] = [this.templateTotals[2 * t], this.templateTotals[2 * t + 1]];

@@ -197,16 +197,23 @@ async function jackknifeOnce(o: JackknifeOptions, log: (line: string) => void): 
     if (!o.quiet) log(`sheaf jackknife: ${what}: ${n(sentences)} sentences at ${nbest}-best in ${((Date.now() - t0) / 1000).toFixed(1)} s (${why})`);
   };
 
+  // A fault of the machine (a full disk …) would fail every output alike, and a bug is a bug: no output
+  // queued after one starts, those running finish (or fail), then the run stops with the first.
+  let fatal: { error: unknown } | null = null;
   await Promise.all(chosen.map((t) => limit(async () => {
+    if (fatal) return;
     try {
       await runTarget(t);
     } catch (e) {
-      // A fault of the machine (a full disk …) would fail every output alike: stop at once.
-      if (!(e instanceof UsageError) || e instanceof EnvironmentError) throw e;
+      if (!(e instanceof UsageError) || e instanceof EnvironmentError) {
+        fatal ??= { error: e };
+        return;
+      }
       failures.push(e.message);
       if (!o.quiet) log(`sheaf jackknife: ${t.fold === null ? t.file : `fold ${t.fold}`} failed: ${e.message}`);
     }
   })));
+  if (fatal) throw (fatal as { error: unknown }).error;
 
   // Record each fold's base model in the plan (even for outputs found up to date).
   let changed = false;

@@ -122,6 +122,16 @@ export function checkPartSet(parts: PartFolder[]): PartFolder[] {
   for (const p of sorted.slice(1)) {
     const mine = shared(p);
     const field = Object.keys(first).find((k) => JSON.stringify(first[k]) !== JSON.stringify(mine[k])) ?? Object.keys(mine).find((k) => !(k in first));
+    if (field === 'inputs') {
+      // The same files (identity() compared their sha256) named by other paths: rejects.jsonl and the manifest record
+      // the paths, so the merge could not be one machine's output.
+      const a = inputPaths(sorted[0]);
+      const b = inputPaths(p);
+      const k = a.findIndex((x, i) => x !== b[i]);
+      if (k >= 0) {
+        throw new UsageError(`\`${sorted[0].dir}\` (part 0) and \`${p.dir}\` (part ${p.info.part}) name the same input by different paths (\`${a[k]}\` and \`${b[k]}\`); rejects.jsonl and the manifest record input paths, so make every part with the same paths (one command line, run from the same folder)`);
+      }
+    }
     if (field !== undefined) {
       throw new UsageError(`the manifest.json of \`${sorted[0].dir}\` (part 0) and of \`${p.dir}\` (part ${p.info.part}) disagree on \`${field}\`: one is damaged, or the parts were made with different command lines; make the parts again with one \`sheaf prepare … --part I/N\` command line`);
     }
@@ -129,8 +139,11 @@ export function checkPartSet(parts: PartFolder[]): PartFolder[] {
   return sorted;
 }
 
-/** The fields of a part's manifest that are the whole run's, not the part's own. */
+/** The fields of a part's manifest that are the whole run's, not the part's own (input paths included). */
 function shared(p: PartFolder): Record<string, unknown> {
   const { folds: _f, shards: _s, totals, rejects: _r, names, ...rest } = p.manifest;
   return { ...rest, goldTotals: [totals.goldTrees, totals.goldRejected, totals.goldWithoutNbest], names: names ? { file: names.file, perBucket: names.perBucket } : null };
 }
+
+/** The input paths a part's manifest records, in order. */
+const inputPaths = (p: PartFolder) => [p.manifest.inputs.gold.path, ...p.manifest.inputs.nbest.map((x) => x.path), ...(p.manifest.inputs.plan ? [p.manifest.inputs.plan.path] : [])];

@@ -61,17 +61,31 @@ const real = (d: string) => {
 };
 
 export async function runMerge(o: MergeOptions): Promise<MergeSummary> {
-  const claimed = { yes: false };
+  const claimed: Claimed = { yes: false, open: [] };
   try {
     return await mergeOnce(o, claimed);
   } catch (e) {
-    // merge starts over when run again: what it wrote so far only fills the disk.
-    if (claimed.yes) clearPrepareOutput(o.out);
+    // merge starts over when run again: what it wrote so far only fills the disk (files still open would keep
+    // their space after removal, so they are closed first).
+    for (const f of claimed.open) f.abandon();
+    if (claimed.yes) {
+      try {
+        clearPrepareOutput(o.out);
+      } catch {
+        // The error that stopped the run is the one to report.
+      }
+    }
     throw environmentError(e, o.out, 'write', 'run the same command again');
   }
 }
 
-async function mergeOnce(o: MergeOptions, claimed: { yes: boolean }): Promise<MergeSummary> {
+/** What a failed merge must clean up: whether it took the output folder, and what it has open there. */
+interface Claimed {
+  yes: boolean;
+  open: { abandon(): void }[];
+}
+
+async function mergeOnce(o: MergeOptions, claimed: Claimed): Promise<MergeSummary> {
   const started = Date.now();
   if (o.parts.length === 0) throw new UsageError('expected the folders of the parts to merge (made by `sheaf prepare … --part I/N`)');
   const parts = checkPartSet(o.parts.map(loadPart));
@@ -103,6 +117,7 @@ async function mergeOnce(o: MergeOptions, claimed: { yes: boolean }): Promise<Me
     compressed: pipeline.encode.compression === 'gzip',
     templates: pipeline.config.templates.map((t) => t.template),
   }, state, () => {});
+  claimed.open.push(rejects, { abandon: () => writer.abort() });
   const asReject = (line: string, dir: string): RejectRecord => {
     try {
       const r = JSON.parse(line);
@@ -148,7 +163,8 @@ async function mergeOnce(o: MergeOptions, claimed: { yes: boolean }): Promise<Me
       s.finish();
     }
   } catch (e) {
-    rejects.close();
+    rejects.abandon();
+    writer.abort();
     throw e;
   }
   writer.close();

@@ -97,8 +97,19 @@ export function samePart(dir: string, spec: PartSpec | undefined): boolean {
   if (!existsSync(file)) return spec === undefined;
   if (spec === undefined) return false;
   try {
-    const p = parsePartInfo(readFileSync(file, 'utf8'), dir);
-    return p.part === spec.index && p.of === spec.of;
+    // Read loosely: a part made by another version of sheaf is still this part, made again (not another one).
+    const p = JSON.parse(readFileSync(file, 'utf8'));
+    return p !== null && typeof p === 'object' && p.part === spec.index && p.of === spec.of;
+  } catch {
+    return false;
+  }
+}
+
+/** Whether the folder's part.json is one this sheaf reads (a part made by another version is made again). */
+export function partIsCurrent(dir: string): boolean {
+  try {
+    parsePartInfo(readFileSync(join(dir, PART_FILE), 'utf8'), dir);
+    return true;
   } catch {
     return false;
   }

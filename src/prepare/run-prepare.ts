@@ -39,7 +39,7 @@ import { TOOL_VERSION } from '../version.js';
 import type { SentenceWorkerInit } from './sentence-worker.js';
 import { environmentError } from '../io/fs-faults.js';
 import { clearPrepareOutput, JOURNAL, keepWhatResumeNeeds } from './output-dir.js';
-import { parsePartSpec, PartOutput, samePart, type PartSpec } from './part-output.js';
+import { parsePartSpec, PartOutput, partIsCurrent, samePart, type PartSpec } from './part-output.js';
 
 export interface PrepareOptions {
   gold: string;
@@ -422,7 +422,8 @@ function earlierOutput(o: PrepareOptions, pipeline: LoadedPipeline, inputs: { go
     }
     if ((m.inputs.plan?.sha256 ?? null) !== (planFile ? fileSha256(planFile) : null)) differences.push(m.inputs.plan ? (planFile ? 'another fold plan' : 'a fold plan then, none now') : 'no fold plan then, one now');
     if (!samePart(o.out, o.part)) differences.push(`${existsSync(join(o.out, PART_FILE)) ? 'another part' : 'a whole run'} then, ${partOf(o.part)} now`);
-    const complete = m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes && statSync(join(o.out, s.counts), { throwIfNoEntry: false })?.isFile() === true);
+    const complete = m.shards.every((s) => existsSync(join(o.out, s.file)) && statSync(join(o.out, s.file)).size === s.bytes && statSync(join(o.out, s.counts), { throwIfNoEntry: false })?.isFile() === true)
+      && (!o.part || partIsCurrent(o.out));
     return { upToDate: differences.length === 0 && complete ? m : null, differences };
   }
   if (existsSync(join(o.out, JOURNAL))) {
