@@ -309,6 +309,19 @@ describe('prepare --part and merge', () => {
     await expect(runMerge({ parts: [partsOf[2][0], p1], out, quiet: true })).rejects.toThrow(new RegExp(`name the same input by different paths \\(\`${gold}\` and \`${other(gold).replace(/\./g, '\\.')}\`\\); rejects\\.jsonl and the manifest record input paths`));
   });
 
+  it('a part made by another version of sheaf is named as such by merge, and made again by the same prepare', async () => {
+    const old = fresh('older-part');
+    cpSync(partsOf[2][0], old, { recursive: true });
+    const info = JSON.parse(readFileSync(join(old, 'part.json'), 'utf8'));
+    writeFileSync(join(old, 'part.json'), JSON.stringify({ ...info, format: 'sheaf-part/1', rejects: undefined }));
+    await expect(runMerge({ parts: [old, partsOf[2][1]], out: fresh('refused'), quiet: true })).rejects.toThrow(/says format "sheaf-part\/1"; this sheaf reads `sheaf-part\/2`: another version of sheaf made this part; make it again/);
+    const again = await prepare({ out: old, part: { index: 0, of: 2 } });
+    expect(again.upToDate).toBe(false);
+    const out = fresh('merged-after-remake');
+    await runMerge({ parts: [old, partsOf[2][1]], out, quiet: true });
+    expectSameFolder(out, oneMachine);
+  });
+
   it('refuses a part whose files were changed after it was written', async () => {
     const ps = [partsOf[2][0], fresh('changed')];
     cpSync(partsOf[2][1], ps[1], { recursive: true });
