@@ -98,11 +98,11 @@ export function makeFolder(path: string): void {
 
 /**
  * Removes the files of a command's own under a temporary name (`owned`,
- * names ending in `.tmp`) directly in `dir`: after a failed run of a command
- * that starts over, so a full disk does not stay full of half-written
- * files. Other files, the user's among them, are left alone. Never throws.
+ * names ending in `.tmp`) directly in `dir`, but those `keep` names: after a
+ * failed run, so a full disk does not stay full of half-written files. Other
+ * files, the user's among them, are left alone. Never throws.
  */
-export function removeTemporaries(dir: string, owned: RegExp): void {
+export function removeTemporaries(dir: string, owned: RegExp, keep: (name: string) => boolean = () => false): void {
   let names: string[];
   try {
     names = readdirSync(dir);
@@ -110,7 +110,7 @@ export function removeTemporaries(dir: string, owned: RegExp): void {
     return;
   }
   for (const f of names) {
-    if (!f.endsWith('.tmp') || !owned.test(f)) continue;
+    if (!f.endsWith('.tmp') || !owned.test(f) || keep(f)) continue;
     try {
       rmSync(join(dir, f), { force: true });
     } catch {

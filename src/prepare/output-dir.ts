@@ -1,6 +1,7 @@
 /** The files a prepare run owns in its output folder. */
-import { existsSync, readdirSync, rmSync, unlinkSync } from 'node:fs';
+import { existsSync, readdirSync, unlinkSync } from 'node:fs';
 import { join } from 'node:path';
+import { removeTemporaries } from '../io/fs-faults.js';
 
 export const JOURNAL = 'journal.jsonl';
 
@@ -19,16 +20,6 @@ export function clearPrepareOutput(dir: string): void {
  * resume from). Quiet when the folder is missing or unreadable.
  */
 export function keepWhatResumeNeeds(dir: string): void {
-  let names: string[];
-  try {
-    names = readdirSync(dir);
-  } catch {
-    return;
-  }
   const resumable = existsSync(join(dir, JOURNAL));
-  for (const f of names) {
-    if (!OWNED.test(f) || !f.endsWith('.tmp')) continue;
-    if (resumable && f === 'rejects.jsonl.tmp') continue;
-    rmSync(join(dir, f), { force: true });
-  }
+  removeTemporaries(dir, OWNED, (f) => resumable && f === 'rejects.jsonl.tmp');
 }

@@ -11,28 +11,22 @@
  * change the output.
  */
 import { DataError } from '../core/errors.js';
-import { createVocabulary, type Vocabulary } from '../core/interner.js';
+import { createVocabulary } from '../core/interner.js';
 import type { Tree } from '../core/tree.js';
 import type { SentenceVectors, VectorExtractor } from '../features/extract-vectors.js';
 import type { Pipeline } from '../pipeline/pipeline.js';
 import type { CandidateText, DroppedCandidate, SentenceJob, SentenceResult } from '../records.js';
 import { encodeShard } from '../stages/encode-shard.js';
 import { extractFeatures } from '../stages/extract-features.js';
-import { parseCandidates, parseNormalised, parseUsableCandidates } from '../stages/parse-candidates.js';
+import { parseNormalised, parseUsableCandidates } from '../stages/parse-candidates.js';
 import { scoreOrDrop } from '../stages/score-candidates.js';
 
 /** parse → extract → hash, for one list: no gold needed. */
 export function createFeaturiser(pipeline: Pipeline) {
-  const parse = parseCandidates(pipeline.parse);
   const extractor = extractFeatures(pipeline.templates, pipeline.hashing);
   return {
     extractor,
-    run(candidates: readonly CandidateText[], vocab: Vocabulary): { trees: Tree[]; vectors: SentenceVectors } {
-      const trees = parse(candidates, vocab);
-      const vectors = extractor.sentence(trees.map((tree, rank) => ({ tree, score: candidates[rank].score, rank })));
-      return { trees, vectors };
-    },
-    parse,
+    /** The list's trees that parse, with their base ranks; the others as dropped candidates. */
     parseUsable: parseUsableCandidates(pipeline.parse),
     /** Vectors of some of a list's trees; `ranks` are their base ranks (positions in the list). */
     vectors(trees: readonly Tree[], candidates: readonly CandidateText[], ranks: readonly number[]): SentenceVectors {
