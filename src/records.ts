@@ -30,8 +30,8 @@ export interface ModelIdentity {
   fingerprint: string;
 }
 
-/** A gold tree as the treebank reader yields it (io/read-treebank.ts). */
-export interface TreeRecord {
+/** Where a gold tree stands in its treebank, and its id. */
+export interface TreeLocation {
   /** The record's id: from JSON Lines, or the 1-based position in the file. */
   id: string;
   /** 1-based position of the tree in its file (bad trees count too). */
@@ -42,18 +42,15 @@ export interface TreeRecord {
   column: number;
   /** True when the id is the tree's position (bracketed files, JSON Lines without `id`). */
   byPosition: boolean;
+}
+
+/** A gold tree as the treebank reader yields it (io/read-treebank.ts). */
+export interface TreeRecord extends TreeLocation {
   tree: Tree;
 }
 
 /** A gold tree's text, checked but not built (io/read-treebank.ts, readTreeTexts). */
-export interface TreeTextRecord {
-  id: string;
-  ordinal: number;
-  file: string;
-  line: number;
-  column: number;
-  /** True when the id is the tree's position (bracketed files, JSON Lines without `id`). */
-  byPosition: boolean;
+export interface TreeTextRecord extends TreeLocation {
   /** The tree exactly as the file has it (possibly over several lines). */
   text: string;
 }

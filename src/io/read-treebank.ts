@@ -10,7 +10,7 @@ import { checkTree, parseTree } from '../core/read-brackets.js';
 import { BracketSplitter, isSplitError, type SplitItem } from '../core/split-brackets.js';
 import { TreeBuilder } from '../core/tree.js';
 import { notWellFormed } from '../core/well-formed.js';
-import type { TreeRecord, TreeTextRecord } from '../records.js';
+import type { TreeLocation, TreeRecord, TreeTextRecord } from '../records.js';
 
 export type { TreeRecord, TreeTextRecord };
 import { decodeText, inflateBytes, readBytes, type BadLine } from './open-input.js';
@@ -78,13 +78,7 @@ export async function* readTreeTexts(file: string, options: ReadTreebankOptions)
   }
 }
 
-interface Located<T> {
-  id: string;
-  ordinal: number;
-  file: string;
-  line: number;
-  column: number;
-  byPosition: boolean;
+interface Located<T> extends TreeLocation {
   value: T;
 }
 
