@@ -15,15 +15,12 @@ import { runSplit } from '../dist/folds/run-split.js';
 import { dumpName, runJackknife } from '../dist/jackknife/run-jackknife.js';
 import { runPrepare } from '../dist/prepare/run-prepare.js';
 import { runTrain } from '../dist/train/run-train.js';
+import { option } from './lib/args.mjs';
 
-const arg = (name, dflt) => {
-  const i = process.argv.indexOf(`--${name}`);
-  return i > 0 ? process.argv[i + 1] : dflt;
-};
 const root = fileURLToPath(new URL('..', import.meta.url));
-const pipelineFile = join(root, 'pipelines', `${arg('pipeline', 'demo')}.json`);
-const nbest = Number(arg('nbest', '50'));
-const epochs = Number(arg('epochs', '10'));
+const pipelineFile = join(root, 'pipelines', `${option('pipeline', 'demo')}.json`);
+const nbest = Number(option('nbest', '50'));
+const epochs = Number(option('epochs', '10'));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-ablate-'));
 const at = (n) => join(dir, n);
 const fmt = (x) => x.toFixed(2);

@@ -22,18 +22,15 @@
 //   node scripts/bench-merge.mjs [--small 1000] [--large 4000]
 import { createHash } from 'node:crypto';
 import { spawnSync } from 'node:child_process';
-import { createWriteStream, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { perturb, randomTree, rng } from './lib/gen-trees.mjs';
+import { option } from './lib/args.mjs';
+import { writeGeneratedLists } from './lib/gen-trees.mjs';
 
-const arg = (name, dflt) => {
-  const k = process.argv.indexOf(`--${name}`);
-  return k < 0 ? dflt : process.argv[k + 1];
-};
-const SMALL = Number(arg('small', 1000));
-const LARGE = Number(arg('large', 4000));
+const SMALL = Number(option('small', 1000));
+const LARGE = Number(option('large', 4000));
 const K = 50;
 const PARTS = 4;
 const root = fileURLToPath(new URL('..', import.meta.url));
@@ -42,22 +39,6 @@ const pipeline = join(root, 'pipelines/default.json');
 const n0 = (x) => Math.round(x).toLocaleString('en-US');
 const mb = (b) => b / 2 ** 20;
 
-async function generated(name, sentences, seed) {
-  const rand = rng(seed);
-  const gold = join(dir, `${name}.trees`);
-  const dump = join(dir, `${name}.jsonl`);
-  const g = createWriteStream(gold);
-  const d = createWriteStream(dump);
-  for (let s = 0; s < sentences; s++) {
-    const tree = randomTree(rand, 20 + Math.floor(rand() * 11));
-    g.write(tree + '\n');
-    const cands = [];
-    for (let c = 0; c < K; c++) cands.push({ tree: c === 3 ? tree : perturb(rand, tree, 0.15), score: Math.round((-40 - c * 0.4 - rand()) * 1000) / 1000 });
-    if (!d.write(JSON.stringify({ id: String(s + 1), fold: null, source: { parser: 'bench', fingerprint: 'none' }, candidates: cands }) + '\n')) await new Promise((r) => d.once('drain', r));
-  }
-  await Promise.all([new Promise((r) => g.end(r)), new Promise((r) => d.end(r))]);
-  return { gold, dump, bytes: statSync(dump).size, sentences };
-}
 
 /** Runs `fn` of a dist module in a fresh process: wall seconds, CPU seconds (all threads), peak RSS (MB). */
 function fresh(name, module, fn, options) {
@@ -81,7 +62,7 @@ const digests = (d) => Object.fromEntries(readdirSync(d).filter((f) => statSync(
 const shardBytes = (d) => JSON.parse(readFileSync(join(d, 'manifest.json'), 'utf8')).shards.reduce((a, s) => a + s.bytes, 0);
 
 async function size(label, sentences, seed) {
-  const input = await generated(label, sentences, seed);
+  const input = await writeGeneratedLists(dir, label, sentences, K, seed);
   const one = prepare(`${label}-one`, input, join(dir, `${label}-one`));
   const parts = [];
   for (let I = 0; I < PARTS; I++) parts.push(prepare(`${label}-part${I}`, input, join(dir, `${label}-part-${I}`), { index: I, of: PARTS }));

@@ -42,16 +42,13 @@ import { KBestParser, PcfgTrainer, DEFAULT_PCFG_SETTINGS } from '../dist/parser/
 import { createSentenceChain } from '../dist/prepare/sentence-chain.js';
 import { parseCandidates } from '../dist/stages/parse-candidates.js';
 import { scoreCandidates } from '../dist/stages/score-candidates.js';
-import { perturb, randomTree, rng } from './lib/gen-trees.mjs';
+import { option } from './lib/args.mjs';
+import { writeGeneratedLists } from './lib/gen-trees.mjs';
 
-const arg = (name, dflt) => {
-  const k = process.argv.indexOf(`--${name}`);
-  return k < 0 ? dflt : process.argv[k + 1];
-};
-const SPEED = Number(arg('speed', 2000));
-const SMALL = Number(arg('small', 5000));
-const LARGE = Number(arg('large', 200000));
-const BASELINE = arg('baseline', null);
+const SPEED = Number(option('speed', 2000));
+const SMALL = Number(option('small', 5000));
+const LARGE = Number(option('large', 200000));
+const BASELINE = option('baseline', null);
 const SKIP_MEMORY = process.argv.includes('--skip-memory');
 const K = 50;
 const root = fileURLToPath(new URL('..', import.meta.url));
@@ -66,22 +63,6 @@ async function writeLines(file, lines) {
 }
 
 /** Generated lists: gold trees and candidates with random relabels. */
-async function generated(name, sentences, k, seed) {
-  const rand = rng(seed);
-  const gold = join(dir, `${name}.trees`);
-  const dump = join(dir, `${name}.jsonl`);
-  const g = createWriteStream(gold);
-  const d = createWriteStream(dump);
-  for (let s = 0; s < sentences; s++) {
-    const tree = randomTree(rand, 20 + Math.floor(rand() * 11));
-    g.write(tree + '\n');
-    const cands = [];
-    for (let c = 0; c < k; c++) cands.push({ tree: c === 3 ? tree : perturb(rand, tree, 0.15), score: Math.round((-40 - c * 0.4 - rand()) * 1000) / 1000 });
-    if (!d.write(JSON.stringify({ id: String(s + 1), fold: null, source: { parser: 'bench', fingerprint: 'none' }, candidates: cands }) + '\n')) await new Promise((r) => d.once('drain', r));
-  }
-  await Promise.all([new Promise((r) => g.end(r)), new Promise((r) => d.end(r))]);
-  return { gold, dump, bytes: statSync(dump).size };
-}
 
 /** Parsed lists: the embedded PCFG's 50-best for the demo training sentences. */
 async function parsed(name) {
@@ -194,7 +175,7 @@ function endToEnd(label, input, f1PerCandidate) {
 }
 
 console.log(`sheaf prepare benchmark; data in ${dir}`);
-const gen = await generated('generated', SPEED, K, 1);
+const gen = await writeGeneratedLists(dir, 'generated', SPEED, K, 1);
 const genF1 = inProcess('generated', gen).f1PerCandidate;
 const genRun = endToEnd('generated', gen, genF1);
 const real = await parsed('parsed');
@@ -202,17 +183,17 @@ const realF1 = inProcess('parsed', real).f1PerCandidate;
 endToEnd('parsed', real, realF1);
 
 // Linear cost: 2 workers at two sizes of generated 50-best data.
-const half = await generated('half', Math.max(200, Math.floor(SPEED / 4)), K, 4);
+const half = await writeGeneratedLists(dir, 'half', Math.max(200, Math.floor(SPEED / 4)), K, 4);
 const halfRun = prepare(half, 2, 'half');
 const perCandidate = (genRun.secs - halfRun.secs) / (genRun.candidates - halfRun.candidates);
 console.log(`linear cost (2 workers, generated): ${n0(halfRun.candidates)} candidates in ${halfRun.secs.toFixed(1)} s, ${n0(genRun.candidates)} in ${genRun.secs.toFixed(1)} s: ${(perCandidate * 1e6).toFixed(1)} µs per added candidate`);
 console.log(`1M sentences x 50 extrapolated: ${((perCandidate * 50e6 + halfRun.secs) / 60).toFixed(0)} min (target <= 15 min)`);
 
 if (!SKIP_MEMORY) {
-  const small = await generated('small', SMALL, 10, 2);
+  const small = await writeGeneratedLists(dir, 'small', SMALL, 10, 2);
   const s = prepare(small, 2, 'small');
   rmSync(small.dump);
-  const large = await generated('large', LARGE, 10, 3);
+  const large = await writeGeneratedLists(dir, 'large', LARGE, 10, 3);
   const l = prepare(large, 2, 'large');
   rmSync(large.dump);
   console.log(`peak RSS, 2 workers, 10 candidates: ${n0(SMALL)} sentences ${s.rss.toFixed(0)} MB, ${n0(LARGE)} sentences ${l.rss.toFixed(0)} MB: ratio ${(l.rss / s.rss).toFixed(2)} (target <= 400 MB, ratio <= 1.15)`);

@@ -20,14 +20,11 @@ import { runPrepare } from '../dist/prepare/run-prepare.js';
 import { runRerank } from '../dist/rerank/run-rerank.js';
 import { AveragedPerceptron } from '../dist/train/perceptron.js';
 import { runTrain } from '../dist/train/run-train.js';
+import { option } from './lib/args.mjs';
 
-const arg = (name, dflt) => {
-  const i = process.argv.indexOf(`--${name}`);
-  return i > 0 ? process.argv[i + 1] : dflt;
-};
-const nbest = Number(arg('nbest', '50'));
-const workerCounts = arg('workers', '1,2').split(',').map(Number);
-const keep = arg('keep', null);
+const nbest = Number(option('nbest', '50'));
+const workerCounts = option('workers', '1,2').split(',').map(Number);
+const keep = option('keep', null);
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = keep ?? mkdtempSync(join(tmpdir(), 'sheaf-bench-train-'));
 mkdirSync(dir, { recursive: true });
