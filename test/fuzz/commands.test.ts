@@ -157,6 +157,17 @@ beforeAll(async () => {
 
 const shardFiles = () => readdirSync(shards).filter((f) => f !== 'rejects.jsonl');
 const modelFiles = () => readdirSync(model);
+/** Copies of the good shard and model folders, with one file of one of them damaged. */
+function damagedCopies(inModel: boolean, which: number, edits: Parameters<typeof damage>[1]): { s: string; m: string } {
+  const s = fresh('shards');
+  const m = fresh('model');
+  cpSync(shards, s, { recursive: true });
+  cpSync(model, m, { recursive: true });
+  const files = inModel ? modelFiles() : shardFiles();
+  const f = join(inModel ? m : s, files[which % files.length]);
+  writeFileSync(f, damage(readFileSync(f), edits));
+  return { s, m };
+}
 const noop = async () => {};
 let failures = 0;
 
@@ -186,13 +197,7 @@ describe('fuzz: train, eval, export, inspect, rerank on damaged directories', ()
   it('a shard or model file damaged (bytes, cut, manifest JSON): each command ends or fails typed', async () => {
     failures = 0;
     await fc.assert(fc.asyncProperty(fc.boolean(), fc.nat(), damageArb.filter((d) => d.length > 0), async (inModel, which, edits) => {
-      const s = fresh('shards');
-      const m = fresh('model');
-      cpSync(shards, s, { recursive: true });
-      cpSync(model, m, { recursive: true });
-      const files = inModel ? modelFiles() : shardFiles();
-      const f = join(inModel ? m : s, files[which % files.length]);
-      writeFileSync(f, damage(readFileSync(f), edits));
+      const { s, m } = damagedCopies(inModel, which, edits);
       await commandsOn(s, m);
       drop(s, m);
     }), runs(120, { timeout: 30_000 }));
@@ -258,13 +263,7 @@ describe('fuzz: the same through the CLI, with a 512 MB heap', () => {
       expect([0, 1], r.stderr).toContain(r.status);
       expect(r.stderr).not.toContain('internal error');
       if (r.status === 0) checkOutput(out);
-      const s = fresh('shards');
-      const m = fresh('model');
-      cpSync(shards, s, { recursive: true });
-      cpSync(model, m, { recursive: true });
-      const files = inModel ? modelFiles() : shardFiles();
-      const f = join(inModel ? m : s, files[which % files.length]);
-      writeFileSync(f, damage(readFileSync(f), edits));
+      const { s, m } = damagedCopies(inModel, which, edits);
       for (const args of [['inspect', s, '--jsonl'], ['export', s, '--format', 'svmlight'], ['eval', s, '--model', m, '--samples', '5']]) {
         const q = cli(...args);
         expect([0, 1], `${args[0]}: ${q.stderr}`).toContain(q.status);
