@@ -64,6 +64,32 @@ function runUntil(args: string[], poll: (elapsed: number) => boolean): Promise<{
   });
 }
 
+/**
+ * A check, to call at every poll: each file of `out` under a final name
+ * equals the reference's, else a line goes to `violations` (the journal is
+ * appended by design: a torn last line is allowed).
+ */
+function finalNamesCheck(out: string, ref: Map<string, Buffer>, violations: string[]): () => void {
+  return () => {
+    let names: string[];
+    try {
+      names = readdirSync(out);
+    } catch {
+      return; // not made yet, or removed
+    }
+    for (const f of names) {
+      if (f.endsWith('.tmp') || f === 'journal.jsonl') continue;
+      let bytes: Buffer;
+      try {
+        bytes = readFileSync(join(out, f));
+      } catch {
+        continue; // replaced or removed between the listing and the read
+      }
+      if (!ref.has(f) || !ref.get(f)!.equals(bytes)) violations.push(`${f} (${bytes.length} bytes) differs from the undisturbed run's`);
+    }
+  };
+}
+
 let data: DemoData;
 let gold: string;
 let pipeline: string;
@@ -91,20 +117,7 @@ describe('crash and resume: prepare', () => {
 
     const out = join(dir, 'killed');
     const violations: string[] = [];
-    /** Every file under a final name equals the reference's (the journal is appended by design; a torn last line is allowed). */
-    const checkFinalNames = () => {
-      if (!existsSync(out)) return;
-      for (const f of readdirSync(out)) {
-        if (f.endsWith('.tmp') || f === 'journal.jsonl') continue;
-        let bytes: Buffer;
-        try {
-          bytes = readFileSync(join(out, f));
-        } catch {
-          continue; // replaced between the listing and the read
-        }
-        if (!ref.has(f) || !ref.get(f)!.equals(bytes)) violations.push(`${f} (${bytes.length} bytes) differs from the undisturbed run's`);
-      }
-    };
+    const checkFinalNames = finalNamesCheck(out, ref, violations);
     const journalShards = () => {
       try {
         return readFileSync(join(out, 'journal.jsonl'), 'utf8').split('\n').filter((l) => l.startsWith('{"shard"')).length;
@@ -245,25 +258,7 @@ async function killAndRerun(args: (out: string) => string[], name: string, minKi
   const ref = files(reference);
   const out = join(dir, `${name}-killed`);
   const violations: string[] = [];
-  const check = () => {
-    if (!existsSync(out)) return;
-    let names: string[];
-    try {
-      names = readdirSync(out);
-    } catch {
-      return;
-    }
-    for (const f of names) {
-      if (f.endsWith('.tmp') || f === 'journal.jsonl') continue;
-      let bytes: Buffer;
-      try {
-        bytes = readFileSync(join(out, f));
-      } catch {
-        continue; // replaced or removed between the listing and the read
-      }
-      if (!ref.has(f) || !ref.get(f)!.equals(bytes)) violations.push(`${f} (${bytes.length} bytes) differs from the undisturbed run's`);
-    }
-  };
+  const check = finalNamesCheck(out, ref, violations);
   let kills = 0;
   // From Node's start-up to the last write: kills land in every phase of the run.
   const points = Array.from({ length: 12 }, (_, k) => ((k + 1) / 13) * took);
