@@ -27,6 +27,7 @@ import { parseTaskFile } from '../src/formats/task-file.js';
 import { runJackknife } from '../src/jackknife/run-jackknife.js';
 import { runPrepare } from '../src/prepare/run-prepare.js';
 import { makeDemoData, type DemoData } from './helpers/make-demo-data.js';
+import { demoPipeline } from './helpers/demo-pipeline.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-cluster-'));
@@ -198,9 +199,7 @@ describe('--engine slurm through a stand-in sbatch', () => {
     gold = join(dir, 'gold.trees');
     writeFileSync(gold, trees.join('\n') + '\n');
     data = await makeDemoData(gold, join(dir, 'in'), { folds: 3, nbest: 6 });
-    const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
-    p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 15;
-    p.stages.find((s: any) => s.stage === 'extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
+    const p = demoPipeline({ sentencesPerShard: 15 });
     pipeline = join(dir, 'pipeline.json');
     writeFileSync(pipeline, JSON.stringify(p));
   });

@@ -27,6 +27,7 @@ import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeDemoData, type DemoData } from './helpers/make-demo-data.js';
 import { seededRandom } from './helpers/synthetic-nbest.js';
+import { demoPipeline } from './helpers/demo-pipeline.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const BIN = join(root, 'bin/sheaf.js');
@@ -98,10 +99,7 @@ beforeAll(async () => {
   gold = join(dir, 'gold.trees');
   writeFileSync(gold, trees.join('\n') + '\n');
   data = await makeDemoData(gold, join(dir, 'in'), { folds: 3, nbest: 10 });
-  const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
-  p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 12;
-  p.stages.find((s: any) => s.stage === 'extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
-  p.stages.find((s: any) => s.stage === 'hash-features.v2').names = 0;
+  const p = demoPipeline({ sentencesPerShard: 12, names: 0 });
   pipeline = join(dir, 'pipeline.json');
   writeFileSync(pipeline, JSON.stringify(p));
 });

@@ -20,6 +20,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeDemoData, type DemoData } from './helpers/make-demo-data.js';
+import { demoPipeline } from './helpers/demo-pipeline.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const BIN = join(root, 'bin/sheaf.js');
@@ -73,10 +74,7 @@ beforeAll(async () => {
   gold = join(dir, 'gold.trees');
   writeFileSync(gold, trees.join('\n') + '\n');
   data = await makeDemoData(gold, join(dir, 'in'), { folds: 3, nbest: 10 });
-  const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
-  p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 10;
-  p.stages.find((s: any) => s.stage === 'extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
-  p.stages.find((s: any) => s.stage === 'hash-features.v2').names = 0;
+  const p = demoPipeline({ sentencesPerShard: 10, names: 0 });
   pipeline = join(dir, 'pipeline.json');
   writeFileSync(pipeline, JSON.stringify(p));
   for (const f of [gold, pipeline, ...data.dumps]) chmodSync(f, 0o644);

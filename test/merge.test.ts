@@ -22,6 +22,7 @@ import { runPrepare, SimulatedStop, type PrepareOptions } from '../src/prepare/r
 import { runTrain } from '../src/train/run-train.js';
 import { main } from '../src/cli.js';
 import { makeDemoData, type DemoData } from './helpers/make-demo-data.js';
+import { demoPipeline, stageOf } from './helpers/demo-pipeline.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-merge-'));
@@ -64,11 +65,8 @@ beforeAll(async () => {
   const first = join(dir, 'in', 'damaged-fold-0.jsonl');
   writeFileSync(first, damaged.join('\n') + '\n');
   dumps = [first, ...data.dumps.slice(1)];
-  const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
-  const stage = (id: string) => p.stages.find((s: any) => s.stage === id);
-  stage('write-shards.v1').sentencesPerShard = 20;
-  stage('extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
-  stage('hash-features.v2').names = 0;
+  const p = demoPipeline({ sentencesPerShard: 20, names: 0 });
+  const stage = (id: string) => stageOf(p, id);
   const save = (name: string) => {
     const f = join(dir, name);
     writeFileSync(f, JSON.stringify(p));

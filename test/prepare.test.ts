@@ -27,6 +27,7 @@ import { readManifest, readShard, readShardDir } from '../src/io/read-shards.js'
 import { runPrepare, SimulatedStop, type PrepareOptions } from '../src/prepare/run-prepare.js';
 import { parseCandidates } from '../src/stages/parse-candidates.js';
 import type { ShardSentence } from '../src/records.js';
+import { demoPipeline, stageOf } from './helpers/demo-pipeline.js';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'sheaf-prepare-'));
@@ -44,13 +45,10 @@ beforeAll(async () => {
   gold = join(dir, 'gold.trees');
   writeFileSync(gold, trees.join('\n') + '\n');
   data = await makeDemoData(gold, join(dir, 'in'), { folds: 3, nbest: 8 });
-  const p = JSON.parse(readFileSync(join(root, 'pipelines/demo.json'), 'utf8'));
-  p.stages.find((s: any) => s.stage === 'write-shards.v1').sentencesPerShard = 25;
-  p.stages.find((s: any) => s.stage === 'extract-features.v1').templates.find((t: any) => t.template === 'lexicon.v1').path = join(root, 'demo-corpus/lexicon.tsv');
-  p.stages.find((s: any) => s.stage === 'hash-features.v2').names = 0;
+  const p = demoPipeline({ sentencesPerShard: 25, names: 0 });
   pipeline = join(dir, 'pipeline.json');
   writeFileSync(pipeline, JSON.stringify(p));
-  p.stages.find((s: any) => s.stage === 'hash-features.v2').names = 2;
+  stageOf(p, 'hash-features.v2').names = 2;
   namesPipeline = join(dir, 'pipeline-names.json');
   writeFileSync(namesPipeline, JSON.stringify(p));
 });
