@@ -93,8 +93,14 @@ export class UsageError extends Error {
  * ours and not bad data: status 1, with the path and what to do.
  */
 export class EnvironmentError extends UsageError {
-  constructor(readonly code: string, readonly path: string, message: string, options?: { cause?: unknown }) {
-    super(message, options);
+  /** What was being done (`write`, `make`…) and, once a command has said it, how to go on. */
+  readonly doing: string;
+  readonly then: string;
+
+  constructor(readonly code: string, readonly path: string, message: string, options: { cause?: unknown; doing?: string; then?: string } = {}) {
+    super(message, { cause: options.cause });
     this.name = 'EnvironmentError';
+    this.doing = options.doing ?? '';
+    this.then = options.then ?? '';
   }
 }

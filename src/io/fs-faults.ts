@@ -38,15 +38,14 @@ export function isEnvironmentFault(e: unknown): e is NodeJS.ErrnoException {
 export function environmentError(e: unknown, path: string, doing: string, then = ''): unknown {
   if (e instanceof EnvironmentError) {
     // Named deeper down (the file being written); the command adds how to go on.
-    if (!then || !passes(e.code) || e.message.includes(then)) return e;
-    const doingThere = /^cannot (.+?) `/.exec(e.message)?.[1] ?? doing;
-    return new EnvironmentError(e.code, e.path, sentence(e.code, e.path, doingThere, then), { cause: e.cause ?? e });
+    if (!then || !passes(e.code) || e.then) return e;
+    return new EnvironmentError(e.code, e.path, sentence(e.code, e.path, e.doing || doing, then), { cause: e.cause ?? e, doing: e.doing || doing, then });
   }
   if (!isEnvironmentFault(e)) return e;
   const code = e.code!;
   // Files are written under NAME.tmp and renamed: the user knows them by NAME.
   const where = e.path ? e.path.replace(/\.tmp$/, '') : path;
-  return new EnvironmentError(code, where, sentence(code, where, doing, then), { cause: e });
+  return new EnvironmentError(code, where, sentence(code, where, doing, then), { cause: e, doing, then });
 }
 
 /** Faults that pass with time or room: a full disk, too many open files, a device error. */
