@@ -17,7 +17,7 @@
 //     --baseline DIR a built checkout of an earlier sheaf run on the same data
 //     with 1 worker (the "today's" of an issue);
 //   - shard directory bytes / input JSON Lines bytes (target <= 1.0), and
-//     format-1 bytes (8 bytes per stored bucket, whole vectors) / format-2;
+//     format-1 bytes (8 bytes per stored bucket, whole vectors) / format-3 (the current one);
 //   - peak RSS with 2 workers at two corpus sizes (gold and lists alike,
 //     10 candidates each; target <= 400 MB, ratio <= 1.15);
 //   - 1M sentences x 50 extrapolated from two measured sizes (target <= 15 min).
@@ -136,7 +136,7 @@ function inProcess(label, input) {
   console.log(`[${label}] one thread, in process (${jobs.length} lists):`);
   console.log(`  read-only floor: parse + normalise      ${n0(floor)} candidates/s`);
   console.log(`  direct path, format 1 (the oracle)      ${n0(direct)} candidates/s`);
-  console.log(`  prepare chain, format 2                 ${n0(diff)} candidates/s   ${(diff / floor).toFixed(2)} of the floor (target >= 0.33), ${(diff / direct).toFixed(2)}x the direct path`);
+  console.log(`  prepare chain, format 3                 ${n0(diff)} candidates/s   ${(diff / floor).toFixed(2)} of the floor (target >= 0.33), ${(diff / direct).toFixed(2)}x the direct path`);
   console.log(`  per candidate: ${(work.computed / work.candidates).toFixed(0)} features computed, ${(work.stored / work.candidates).toFixed(0)} entries stored`);
   return { f1PerCandidate: f1 / (200 * K) };
 }
@@ -170,7 +170,7 @@ function endToEnd(label, input, f1PerCandidate) {
     const base = prepare(input, 1, `${label}-baseline`, resolve(BASELINE), join(resolve(BASELINE), 'pipelines/default.json'));
     console.log(`  baseline ${BASELINE}, 1 worker     ${n0(base.candidates / base.secs)} candidates/s   this one: ${(base.secs / one.secs).toFixed(2)}x (target >= 5)`);
   }
-  console.log(`  shard directory / input JSON Lines      ${(two.bytes / input.bytes).toFixed(2)} (target <= 1.0); format 1 / format 2: ${((f1PerCandidate * two.candidates) / two.bytes).toFixed(1)} (target >= 5)`);
+  console.log(`  shard directory / input JSON Lines      ${(two.bytes / input.bytes).toFixed(2)} (target <= 1.0); format 1 / format 3: ${((f1PerCandidate * two.candidates) / two.bytes).toFixed(1)} (target >= 5)`);
   return two;
 }
 

@@ -18,6 +18,7 @@ import { parseTree } from '../src/core/read-brackets.js';
 import { addVectors, splitParts, type SparseVector } from '../src/core/sparse-vector.js';
 import { writeTree } from '../src/core/write-brackets.js';
 import { seededRandom, syntheticCandidates } from './helpers/synthetic-nbest.js';
+import { bucketTable } from '../src/formats/shard-record.js';
 import { directVectors } from '../src/features/direct-vectors.js';
 import { VectorExtractor, type CandidateInput } from '../src/features/extract-vectors.js';
 import { checkOptions } from '../src/features/options.js';
@@ -60,6 +61,11 @@ function check(templates: ConfiguredTemplate[], cands: CandidateInput[], bits = 
   });
   // The stored reference holds exactly the varying buckets (where the reference is non-zero).
   if (dropUniform) for (const b of v.ref!.idx) expect(v.varying).toContain(b);
+  // The list's stored buckets and each vector's positions in them: what the shard encoder would make itself.
+  const vectors = [v.ref!, ...v.diffs];
+  const table = bucketTable(vectors);
+  expect(Array.from(v.buckets)).toEqual(Array.from(table.buckets));
+  vectors.forEach((x, k) => expect(Array.from(x.pos), `vector ${k}`).toEqual(Array.from(table.pos[k])));
   return entries;
 }
 

@@ -35,7 +35,7 @@ describe('manifest', () => {
     ['a shard file outside the directory', (m: any) => { m.shards[0].file = '../elsewhere/shard-00000.msgpack.gz'; }, /expected a plain name like `shard-00000\.msgpack\.gz` inside the directory/],
     ['an absolute shard path', (m: any) => { m.shards[0].file = '/etc/passwd'; }, /expected a plain name/],
     ['a count file outside the directory', (m: any) => { m.shards[0].counts = '../counts.msgpack'; }, /count file/],
-    ['an older format', (m: any) => { m.format = 'sheaf-shards/1'; }, /this sheaf reads `sheaf-shards\/2`.*run `sheaf prepare` again/],
+    ['an older format', (m: any) => { m.format = 'sheaf-shards/2'; }, /this sheaf reads `sheaf-shards\/3`.*run `sheaf prepare` again/],
     ['totals that do not reconcile', (m: any) => { m.totals.rejected = 0; }, /totals do not reconcile/],
     ['shards that do not hold the written sentences', (m: any) => { m.shards[0].sentences = 3; }, /holding 3 sentences but says 2/],
     ['the same shard twice', (m: any) => { m.shards.push({ ...m.shards[0] }); m.totals.written = 4; m.totals.read = 5; }, /twice/],

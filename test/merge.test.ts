@@ -73,9 +73,9 @@ beforeAll(async () => {
     return f;
   };
   pipeline = save('pipeline.json');
-  stage('encode-shard.v2').compression = 'none';
+  stage('encode-shard.v3').compression = 'none';
   plainPipeline = save('pipeline-plain.json');
-  stage('encode-shard.v2').compression = 'gzip';
+  stage('encode-shard.v3').compression = 'gzip';
   stage('hash-features.v2').names = 2;
   namesPipeline = save('pipeline-names.json');
   stage('hash-features.v2').names = 0;

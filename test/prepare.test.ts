@@ -115,9 +115,11 @@ describe('sheaf prepare', () => {
       expect(theirs.length).toBe(ours.length);
       const le = (b: Uint8Array, dtype: string) => {
         const dv = new DataView(b.buffer, b.byteOffset, b.byteLength);
-        const width = { '<u4': 4, '<i1': 1, '<i2': 2, '<i4': 4, '<f4': 4, '<f8': 8 }[dtype]!;
+        const width = { '<u1': 1, '<u2': 2, '<u4': 4, '<i1': 1, '<i2': 2, '<i4': 4, '<f4': 4, '<f8': 8 }[dtype]!;
         return Array.from({ length: b.byteLength / width }, (_, i) => {
           switch (dtype) {
+            case '<u1': return dv.getUint8(i);
+            case '<u2': return dv.getUint16(2 * i, true);
             case '<u4': return dv.getUint32(4 * i, true);
             case '<i1': return dv.getInt8(i);
             case '<i2': return dv.getInt16(2 * i, true);
@@ -127,24 +129,32 @@ describe('sheaf prepare', () => {
           }
         });
       };
+      // Gaps (README): the first value, then differences; a running sum gives the values back.
+      const sums = (g: number[]) => g.map(((x) => (d: number) => (x += d))(0));
       theirs.forEach((t, k) => {
         const o = ours[k];
-        expect(Object.keys(t)).toEqual(['id', 'pos', 'fold', 'gold', 'len', 'flag', 'ref', 'cands']);
+        expect(Object.keys(t)).toEqual(['id', 'pos', 'fold', 'gold', 'len', 'flag', 'buckets', 'btype', 'itype', 'ref', 'cands']);
         expect([t.id, t.pos, t.fold, t.gold, t.len, t.flag]).toEqual([o.id, o.pos, o.fold, o.gold, o.len, o.flag]);
+        const buckets = sums(le(t.buckets, t.btype));
+        for (let i = 1; i < buckets.length; i++) expect(buckets[i]).toBeGreaterThan(buckets[i - 1]);
+        const at = (b: Uint8Array) => sums(le(b, t.itype)).map((p) => buckets[p]);
+        // Every bucket of the sentence is stored by some vector.
+        const used = new Set([t.ref, ...t.cands].flatMap((v: any) => [...at(v.idx), ...at(v.ridx)]));
+        expect([...used].sort((a, b) => a - b)).toEqual(buckets);
         expect(Object.keys(t.ref)).toEqual(['idx', 'val', 'dtype', 'ridx', 'rval', 'rdtype']);
-        expect(le(t.ref.idx, '<u4')).toEqual(Array.from(o.ref!.idx));
+        expect(at(t.ref.idx)).toEqual(Array.from(o.ref!.idx));
         expect(le(t.ref.val, t.ref.dtype)).toEqual(Array.from(o.ref!.val));
-        expect(le(t.ref.ridx, '<u4')).toEqual(Array.from(o.ref!.ridx));
+        expect(at(t.ref.ridx)).toEqual(Array.from(o.ref!.ridx));
         expect(le(t.ref.rval, t.ref.rdtype)).toEqual(Array.from(o.ref!.rval));
         t.cands.forEach((c: any, j: number) => {
           const oc = o.cands[j];
           expect(Object.keys(c)).toEqual(['score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype', 'ridx', 'rval', 'rdtype']);
           expect(['<i1', '<i2', '<i4']).toContain(c.dtype);
           expect(['<f4', '<f8']).toContain(c.rdtype);
-          expect(le(c.ridx, '<u4')).toEqual(Array.from(oc.diff.ridx));
+          expect(at(c.ridx)).toEqual(Array.from(oc.diff.ridx));
           expect(le(c.rval, c.rdtype)).toEqual(Array.from(oc.diff.rval));
           expect([c.score, c.rank, c.matched, c.test]).toEqual([oc.score, oc.rank, oc.matched, oc.test]);
-          const idx = le(c.idx, '<u4');
+          const idx = at(c.idx);
           expect(idx).toEqual(Array.from(oc.diff.idx));
           expect(le(c.val, c.dtype)).toEqual(Array.from(oc.diff.val));
           for (let i = 1; i < idx.length; i++) expect(idx[i]).toBeGreaterThan(idx[i - 1]);
@@ -313,8 +323,14 @@ describe('sheaf prepare', () => {
         // Read with the independent decoder.
         const [c] = [...decodeMulti(readFileSync(join(s.out, sh.counts)))] as any[];
         expect(c.bits).toBe(bits);
-        const idx = new Uint32Array(new Uint8Array(c.idx).buffer);
-        const cnt = new Uint32Array(new Uint8Array(c.count).buffer);
+        const typed = (b: Uint8Array, t: string) => {
+          const bytes = new Uint8Array(b);
+          return t === '<u1' ? Array.from(bytes) : Array.from(t === '<u2' ? new Uint16Array(bytes.buffer) : new Uint32Array(bytes.buffer));
+        };
+        // idx as gaps (the first value, then differences), count plain.
+        const idx = typed(c.idx, c.itype).map(((x) => (d: number) => (x += d))(0));
+        const cnt = typed(c.count, c.ctype);
+        expect(cnt.length).toBe(idx.length);
         for (let k = 1; k < idx.length; k++) expect(idx[k]).toBeGreaterThan(idx[k - 1]);
         idx.forEach((i, k) => fromCounts.set(i, (fromCounts.get(i) ?? 0) + cnt[k]));
       }
@@ -330,7 +346,7 @@ describe('sheaf prepare', () => {
 
   it('writes plain MessagePack when compression is off, with the same records', async () => {
     const p = JSON.parse(readFileSync(pipeline, 'utf8'));
-    p.stages.find((x: any) => x.stage === 'encode-shard.v2').compression = 'none';
+    p.stages.find((x: any) => x.stage === 'encode-shard.v3').compression = 'none';
     const file = join(dir, 'pipeline-plain.json');
     writeFileSync(file, JSON.stringify(p));
     const plain = await run({ pipeline: file });

@@ -75,9 +75,9 @@ describe('fast ranking-list decoder', () => {
     encodeSentence(w, s);
     const bytes = w.bytes().slice();
     const fast = new RankingListDecoder();
-    // Another map size (a ninth key): not the writer's layout.
+    // Another map size (a twelfth key): not the writer's layout.
     const other = bytes.slice();
-    other[0] = 0x89;
+    other[0] = 0x8c;
     expect(fast.decode(other, 0)).toBeNull();
     // A key spelled differently.
     const renamed = bytes.slice();

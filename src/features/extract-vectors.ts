@@ -63,11 +63,18 @@ export interface CandidateInput {
   rank: number;
 }
 
+/** A vector with, per entry, its position in the list's stored buckets (`SentenceVectors.buckets`). */
+export interface PlacedVector extends SparseVector {
+  pos: Uint32Array;
+}
+
 export interface SentenceVectors {
   /** The reference vector at the stored buckets; null for a list without candidates. */
-  ref: SparseVector | null;
+  ref: PlacedVector | null;
   /** Per candidate, its vector minus the reference. */
-  diffs: SparseVector[];
+  diffs: PlacedVector[];
+  /** Every bucket the reference or some difference stores, ascending (what `pos` counts in). */
+  buckets: Uint32Array;
   /** Buckets whose value differs between some candidates, ascending. */
   varying: Uint32Array;
   /**
@@ -157,6 +164,8 @@ export class VectorExtractor {
   private dVal = new Float64Array(8192);
   private oIdx = new Uint32Array(8192);
   private oVal = new Float64Array(8192);
+  private oPos = new Uint32Array(8192);
+  private posOfCol = new Int32Array(1024);
   private shiftCol = new Int32Array(64);
   private shiftVal = new Float64Array(64);
   private variesCol = new Int32Array(1024);
@@ -197,7 +206,7 @@ export class VectorExtractor {
   sentence(cands: readonly CandidateInput[]): SentenceVectors {
     const m = cands.length;
     const templateCounts = new Uint32Array(2 * this.nTemplates);
-    if (m === 0) return { ref: null, diffs: [], varying: new Uint32Array(0), templateCounts };
+    if (m === 0) return { ref: null, diffs: [], buckets: new Uint32Array(0), varying: new Uint32Array(0), templateCounts };
     const views = this.identify(cands);
     this.nodeFeatures(views);
     this.tn = 0;
@@ -207,7 +216,7 @@ export class VectorExtractor {
     this.numberColumns();
     this.consensus(cands);
     const from = this.differencesFromConsensus(cands);
-    const { ref, diffs, varying } = this.fromReference(m, from);
+    const { ref, diffs, buckets, varying } = this.fromReference(m, from);
     const w = this.work;
     w.lists++;
     w.candidates += m;
@@ -217,7 +226,7 @@ export class VectorExtractor {
     for (const d of diffs) w.stored += d.idx.length;
     for (const c of cands) w.nodes += c.tree.size;
     this.countTemplates(templateCounts);
-    return { ref, diffs, varying, templateCounts };
+    return { ref, diffs, buckets, varying, templateCounts };
   }
 
   /** Views and node identities of every candidate; owners and holders of each identity. */
@@ -500,7 +509,7 @@ export class VectorExtractor {
    * consensus value there, so only buckets that more than half the
    * candidates touch can get another value.
    */
-  private fromReference(m: number, from: Int32Array): { ref: SparseVector; diffs: SparseVector[]; varying: Uint32Array } {
+  private fromReference(m: number, from: Int32Array): { ref: PlacedVector; diffs: PlacedVector[]; buckets: Uint32Array; varying: Uint32Array } {
     const { dCol, dVal, colCount: count, colVote: votes, colValue: value, colAgree: agree, colFlags: flags } = this;
     const U = this.nCols;
     const bucketOf = this.columns.buckets;
@@ -543,9 +552,12 @@ export class VectorExtractor {
     if (need > this.oIdx.length) {
       this.oIdx = grown(this.oIdx, need);
       this.oVal = grown(this.oVal, need);
+      this.oPos = grown(this.oPos, need);
     }
     const oIdx = this.oIdx;
     const oVal = this.oVal;
+    // Columns first (as positions in all the list's columns); renumbered below to stored buckets only.
+    const oPos = this.oPos;
     let out = 0;
     const starts = new Int32Array(m + 1);
     for (let c = 0; c < m; c++) {
@@ -554,7 +566,9 @@ export class VectorExtractor {
       const iEnd = from[c + 1];
       if (nShift === 0) {
         for (; i < iEnd; i++) {
-          oIdx[out] = bucketOf[dCol[i]];
+          const col = dCol[i];
+          oIdx[out] = bucketOf[col];
+          oPos[out] = col;
           oVal[out++] = dVal[i];
         }
         continue;
@@ -575,6 +589,7 @@ export class VectorExtractor {
         }
         if (v !== 0) {
           oIdx[out] = bucketOf[col];
+          oPos[out] = col;
           oVal[out++] = v;
         }
       }
@@ -592,14 +607,24 @@ export class VectorExtractor {
       const v = j < nShift && shiftCol[j] === col ? r + shiftVal[j] : r;
       if (v !== 0) {
         oIdx[out] = bucketOf[col];
+        oPos[out] = col;
         oVal[out++] = v;
       }
     }
-    const ref = { idx: oIdx.subarray(refFrom, out), val: oVal.subarray(refFrom, out) };
-    const diffs: SparseVector[] = new Array(m);
-    for (let c = 0; c < m; c++) diffs[c] = { idx: oIdx.subarray(starts[c], starts[c + 1]), val: oVal.subarray(starts[c], starts[c + 1]) };
+    // The stored buckets: the columns some entry uses, numbered again in ascending order.
+    const posOf = this.posOfCol = grown(this.posOfCol, U);
+    posOf.fill(-1, 0, U);
+    for (let e = 0; e < out; e++) posOf[oPos[e]] = 0;
+    let nStored = 0;
+    for (let col = 0; col < U; col++) if (posOf[col] === 0) posOf[col] = nStored++;
+    const buckets = new Uint32Array(nStored);
+    for (let col = 0; col < U; col++) if (posOf[col] >= 0) buckets[posOf[col]] = bucketOf[col];
+    for (let e = 0; e < out; e++) oPos[e] = posOf[oPos[e]];
+    const ref = { idx: oIdx.subarray(refFrom, out), val: oVal.subarray(refFrom, out), pos: oPos.subarray(refFrom, out) };
+    const diffs: PlacedVector[] = new Array(m);
+    for (let c = 0; c < m; c++) diffs[c] = { idx: oIdx.subarray(starts[c], starts[c + 1]), val: oVal.subarray(starts[c], starts[c + 1]), pos: oPos.subarray(starts[c], starts[c + 1]) };
     for (let col = 0; col < U; col++) flags[col] = count[col] > 0 && (flags[col] & UNIFORM) === 0 ? 1 : 0;
-    return { ref, diffs, varying: varies };
+    return { ref, diffs, buckets, varying: varies };
   }
 
   /** Distinct (template, bucket) pairs fired in the list, and how many of them vary (colFlags, set by fromReference). */

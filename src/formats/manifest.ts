@@ -1,5 +1,5 @@
 /**
- * The shard directory's `manifest.json` (format `sheaf-shards/2`), typed and
+ * The shard directory's `manifest.json` (format `sheaf-shards/3`), typed and
  * checked. Written last by `prepare` (and `merge`): a directory with a
  * manifest is complete. Readers check it before trusting it: shard and count
  * files must be plain names inside the directory, totals must reconcile.
@@ -91,10 +91,11 @@ export interface ShardManifest {
 
 /** Record layout written into every manifest (the bytes are in formats/shard-record.ts). */
 export const RECORD_LAYOUT: Record<string, string> = {
-  sentence: 'map {id, pos, fold, gold, len, flag, ref, cands}',
+  sentence: 'map {id, pos, fold, gold, len, flag, buckets, btype, itype, ref, cands}',
+  buckets: 'bin: every bucket some vector of the sentence stores, ascending, as gaps (the first, then differences) of numpy type `btype` (<u1, <u2 or <u4)',
   ref: 'map {idx, val, dtype, ridx, rval, rdtype} | nil: per bucket the value most candidates share, where the list varies',
   candidate: 'map {score, rank, matched, test, idx, val, dtype, ridx, rval, rdtype}: its vector minus the reference',
-  'idx, ridx': 'bin: uint32 little-endian, ascending; an index is in at most one of the two',
+  'idx, ridx': 'bin: positions in `buckets`, ascending, as gaps of numpy type `itype`; an index is in at most one of the two',
   val: 'bin: the integer-valued entries, numpy type `dtype` (<i1, <i2 or <i4)',
   rval: 'bin: the other entries, numpy type `rdtype` (<f4 or <f8)',
 };

@@ -14,8 +14,8 @@ const encoder = new TextEncoder();
 const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
 
 /** Element types `binOf` writes. */
-export type BinElement = 'i8' | 'i16' | 'i32' | 'u32' | 'f32' | 'f64';
-const BIN_WIDTH: Record<BinElement, number> = { i8: 1, i16: 2, i32: 4, u32: 4, f32: 4, f64: 8 };
+export type BinElement = 'i8' | 'i16' | 'i32' | 'u8' | 'u16' | 'u32' | 'f32' | 'f64';
+const BIN_WIDTH: Record<BinElement, number> = { i8: 1, i16: 2, i32: 4, u8: 1, u16: 2, u32: 4, f32: 4, f64: 8 };
 
 export class MsgpackWriter {
   private buf = new Uint8Array(1 << 16);
@@ -145,7 +145,11 @@ export class MsgpackWriter {
     const to = from + n;
     switch (type) {
       case 'i8':
+      case 'u8':
         for (let k = from; k < to; k++) buf[o++] = src[k];
+        break;
+      case 'u16':
+        for (let k = from; k < to; k++, o += 2) view.setUint16(o, src[k], true);
         break;
       case 'i16':
         for (let k = from; k < to; k++, o += 2) view.setInt16(o, src[k], true);

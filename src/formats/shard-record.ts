@@ -1,10 +1,11 @@
 /**
- * One sentence of a shard (format `sheaf-shards/2`) as a MessagePack map, and
+ * One sentence of a shard (format `sheaf-shards/3`) as a MessagePack map, and
  * back. The bytes are fixed here: keys in this order, scores float64, counts
  * as the smallest integer form, vectors as `bin` holding little-endian typed
  * data.
  *
  *   { id: str, pos: int, fold: int | nil, gold: int, len: int, flag: str | nil,
+ *     buckets: bin, btype: str, itype: str,
  *     ref: { idx: bin, val: bin, dtype: str, ridx: bin, rval: bin, rdtype: str } | nil,
  *     cands: [ { score: float64, rank: int, matched: int, test: int,
  *                idx: bin, val: bin, dtype: str, ridx: bin, rval: bin, rdtype: str } ] }
@@ -14,6 +15,9 @@
  *   order when parts made elsewhere are merged.
  * - `len`: words in the sentence, punctuation included.
  * - `flag`: `"no-candidates"` when the base parser gave none, else nil.
+ * - `buckets`: every bucket that some vector of the sentence stores, ascending,
+ *   as gaps of type `btype` (gaps.ts: the first value, then differences);
+ *   empty without candidates.
  * - `ref`: the reference vector (per bucket, the value most candidates of
  *   the list share) at the buckets where the list varies; nil without
  *   candidates.
@@ -21,28 +25,35 @@
  *   reference + difference.
  * - a vector comes in two parts: `idx`/`val` the integer-valued entries,
  *   `ridx`/`rval` the others (usually a few: the base score, real-valued
- *   shape measures); an index is in at most one part. Indices: uint32
- *   little-endian, ascending. Values: the narrowest exact type, named by
- *   `dtype` / `rdtype` as numpy spells it (`<i1`, `<i2`, `<i4` for the
- *   integer part; `<f4`, `<f8` for the other).
+ *   shape measures); an index is in at most one part. An index is a position
+ *   in `buckets`; each part's positions are ascending, stored as gaps of the
+ *   sentence's `itype` (the narrowest type for every part of the sentence).
+ *   Values: the narrowest exact type, named by `dtype` / `rdtype` as numpy
+ *   spells it (`<i1`, `<i2`, `<i4` for the integer part; `<f4`, `<f8` for
+ *   the other).
+ *
+ * Why positions: the candidates of a list store a few hundred of the list's
+ * buckets each; a position in the list's buckets takes one or two bytes
+ * where a bucket takes four, and the list's buckets are stored once.
  *
  * Pure: no node: imports.
  */
 import { DataError } from '../core/errors.js';
 import { isStoredInteger, type StoredVector, type Values } from '../core/sparse-vector.js';
 import type { RankingList, ShardCandidate, ShardSentence } from '../records.js';
+import { asGapType, gapCount, gapTypeFor, largestGap, readGaps, writeGaps, type GapType } from './gaps.js';
 import { MsgpackError, MsgpackWriter, type BinElement, type Decoded } from './msgpack.js';
 import { show } from '../core/show.js';
 
-export const SHARD_FORMAT = 'sheaf-shards/2';
+export const SHARD_FORMAT = 'sheaf-shards/3';
 
 export type ValueType = '<i1' | '<i2' | '<i4' | '<f4' | '<f8';
 
 const encoder = new TextEncoder();
 const KEY = Object.fromEntries(
-  ['id', 'pos', 'fold', 'gold', 'len', 'flag', 'ref', 'cands', 'score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype', 'ridx', 'rval', 'rdtype'].map((k) => [k, encoder.encode(k)]),
+  ['id', 'pos', 'fold', 'gold', 'len', 'flag', 'buckets', 'btype', 'itype', 'ref', 'cands', 'score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype', 'ridx', 'rval', 'rdtype'].map((k) => [k, encoder.encode(k)]),
 );
-const DTYPE = Object.fromEntries((['<i1', '<i2', '<i4', '<f4', '<f8'] as const).map((t) => [t, encoder.encode(t)])) as Record<ValueType, Uint8Array>;
+const DTYPE = Object.fromEntries((['<i1', '<i2', '<i4', '<f4', '<f8', '<u1', '<u2', '<u4'] as const).map((t) => [t, encoder.encode(t)])) as Record<ValueType | GapType, Uint8Array>;
 
 /** The narrowest type that holds every value exactly (`real`: only float types); `n` values from 0. */
 export function narrowestType(val: ArrayLike<number>, real = false, n = val.length): ValueType {
@@ -66,16 +77,16 @@ export function narrowestType(val: ArrayLike<number>, real = false, n = val.leng
 
 const ELEMENT: Record<ValueType, BinElement> = { '<i1': 'i8', '<i2': 'i16', '<i4': 'i32', '<f4': 'f32', '<f8': 'f64' };
 
-let intIdx = new Uint32Array(1024);
+let intPos = new Uint32Array(1024);
 let intVal = new Float64Array(1024);
-let realIdx = new Uint32Array(64);
+let realPos = new Uint32Array(64);
 let realVal = new Float64Array(64);
 
-/** Writes the six keys of a vector: its integer part and its real part, each narrowed. */
-function writeVector(w: MsgpackWriter, idx: Uint32Array, val: ArrayLike<number>): void {
-  const n = idx.length;
-  if (intIdx.length < n) {
-    intIdx = new Uint32Array(n * 2);
+/** Writes the six keys of a vector: its integer part and its real part, positions as gaps of `it`, values narrowed. */
+function writeVector(w: MsgpackWriter, pos: Uint32Array, val: ArrayLike<number>, it: GapType): void {
+  const n = pos.length;
+  if (intPos.length < n) {
+    intPos = new Uint32Array(n * 2);
     intVal = new Float64Array(n * 2);
   }
   let a = 0;
@@ -83,38 +94,67 @@ function writeVector(w: MsgpackWriter, idx: Uint32Array, val: ArrayLike<number>)
   for (let k = 0; k < n; k++) {
     const v = val[k];
     if (isStoredInteger(v)) {
-      intIdx[a] = idx[k];
+      intPos[a] = pos[k];
       intVal[a++] = v;
     } else {
-      if (b === realIdx.length) {
+      if (b === realPos.length) {
         const ri = new Uint32Array(b * 2);
-        ri.set(realIdx);
-        realIdx = ri;
+        ri.set(realPos);
+        realPos = ri;
         const rv = new Float64Array(b * 2);
         rv.set(realVal);
         realVal = rv;
       }
-      realIdx[b] = idx[k];
+      realPos[b] = pos[k];
       realVal[b++] = v;
     }
   }
   const ti = narrowestType(intVal, false, a);
   const tr = narrowestType(realVal, true, b);
   w.strBytes(KEY.idx);
-  w.binOf(intIdx, 0, a, 'u32');
+  writeGaps(w, intPos, 0, a, it);
   w.strBytes(KEY.val);
   w.binOf(intVal, 0, a, ELEMENT[ti]);
   w.strBytes(KEY.dtype);
   w.strBytes(DTYPE[ti]);
   w.strBytes(KEY.ridx);
-  w.binOf(realIdx, 0, b, 'u32');
+  writeGaps(w, realPos, 0, b, it);
   w.strBytes(KEY.rval);
   w.binOf(realVal, 0, b, ELEMENT[tr]);
   w.strBytes(KEY.rdtype);
   w.strBytes(DTYPE[tr]);
 }
 
-/** What the encoder takes: vectors with plain float64 values (narrowed here). */
+/** The largest gap between positions within either part of a vector (the integer part, the real part). */
+function largestPartGap(pos: Uint32Array, val: ArrayLike<number>): number {
+  let max = 0;
+  let prevInt = 0;
+  let prevReal = 0;
+  for (let k = 0, n = pos.length; k < n; k++) {
+    const p = pos[k];
+    if (isStoredInteger(val[k])) {
+      if (p - prevInt > max) max = p - prevInt;
+      prevInt = p;
+    } else {
+      if (p - prevReal > max) max = p - prevReal;
+      prevReal = p;
+    }
+  }
+  return max;
+}
+
+/** A vector to encode: ascending buckets, their values, and optionally their positions in the sentence's buckets. */
+export interface VectorToEncode {
+  idx: Uint32Array;
+  val: ArrayLike<number>;
+  pos?: Uint32Array;
+}
+
+/**
+ * What the encoder takes: vectors with plain float64 values (narrowed here).
+ * `buckets` with every vector's `pos` may come from the caller (the feature
+ * extractor numbers them anyway); without them the encoder makes them.
+ */
 export interface SentenceToEncode {
   id: string;
   pos: number;
@@ -122,13 +162,59 @@ export interface SentenceToEncode {
   gold: number;
   len: number;
   flag: 'no-candidates' | null;
-  ref: { idx: Uint32Array; val: ArrayLike<number> } | null;
-  cands: { score: number; rank: number; matched: number; test: number; idx: Uint32Array; val: ArrayLike<number> }[];
+  buckets?: Uint32Array;
+  ref: VectorToEncode | null;
+  cands: ({ score: number; rank: number; matched: number; test: number } & VectorToEncode)[];
+}
+
+/** The sentence's buckets (every bucket some vector stores, ascending) and each vector's positions in them. */
+export function bucketTable(vectors: readonly { idx: Uint32Array }[]): { buckets: Uint32Array; pos: Uint32Array[] } {
+  let n = 0;
+  for (const v of vectors) n += v.idx.length;
+  const all = new Uint32Array(n);
+  let o = 0;
+  for (const v of vectors) {
+    all.set(v.idx, o);
+    o += v.idx.length;
+  }
+  all.sort();
+  let u = 0;
+  for (let k = 0; k < n; k++) if (k === 0 || all[k] !== all[k - 1]) all[u++] = all[k];
+  const buckets = all.slice(0, u);
+  const pos = vectors.map((v) => {
+    const p = new Uint32Array(v.idx.length);
+    let lo = 0;
+    for (let k = 0; k < v.idx.length; k++) {
+      // Ascending: search only above the previous position.
+      let hi = u;
+      const x = v.idx[k];
+      while (lo < hi) {
+        const mid = (lo + hi) >>> 1;
+        if (buckets[mid] < x) lo = mid + 1;
+        else hi = mid;
+      }
+      p[k] = lo;
+    }
+    return p;
+  });
+  return { buckets, pos };
 }
 
 /** Appends one sentence map to `w`. */
 export function encodeSentence(w: MsgpackWriter, s: SentenceToEncode): void {
-  w.mapHeader(8);
+  const vectors: VectorToEncode[] = s.ref === null ? s.cands : [s.ref, ...s.cands];
+  let buckets = s.buckets;
+  let pos: Uint32Array[];
+  if (buckets !== undefined && vectors.every((v) => v.pos !== undefined)) pos = vectors.map((v) => v.pos!);
+  else ({ buckets, pos } = bucketTable(vectors));
+  let maxGap = 0;
+  vectors.forEach((v, k) => {
+    const g = largestPartGap(pos[k], v.val);
+    if (g > maxGap) maxGap = g;
+  });
+  const it = gapTypeFor(maxGap);
+  const bt = gapTypeFor(largestGap(buckets));
+  w.mapHeader(11);
   w.strBytes(KEY.id);
   w.str(s.id);
   w.strBytes(KEY.pos);
@@ -143,11 +229,18 @@ export function encodeSentence(w: MsgpackWriter, s: SentenceToEncode): void {
   w.strBytes(KEY.flag);
   if (s.flag === null) w.nil();
   else w.str(s.flag);
+  w.strBytes(KEY.buckets);
+  writeGaps(w, buckets, 0, buckets.length, bt);
+  w.strBytes(KEY.btype);
+  w.strBytes(DTYPE[bt]);
+  w.strBytes(KEY.itype);
+  w.strBytes(DTYPE[it]);
+  let k = 0;
   w.strBytes(KEY.ref);
   if (s.ref === null) w.nil();
   else {
     w.mapHeader(6);
-    writeVector(w, s.ref.idx, s.ref.val);
+    writeVector(w, pos[k++], s.ref.val, it);
   }
   w.strBytes(KEY.cands);
   w.arrayHeader(s.cands.length);
@@ -161,7 +254,7 @@ export function encodeSentence(w: MsgpackWriter, s: SentenceToEncode): void {
     w.int(c.matched);
     w.strBytes(KEY.test);
     w.int(c.test);
-    writeVector(w, c.idx, c.val);
+    writeVector(w, pos[k++], c.val, it);
   }
 }
 
@@ -201,23 +294,50 @@ function int(m: Map_, key: string, where: string, min = 0): number {
   return v as number;
 }
 
-function part(m: Map_, where: string, ik: string, vk: string, tk: string, real: boolean): { idx: Uint32Array; val: Values } {
+function gapType(m: Map_, key: string, where: string): GapType {
+  const t = asGapType(m[key]);
+  if (t === null) bad(`${where}: expected \`${key}\` to be one of \`<u1\`, \`<u2\`, \`<u4\`, got ${show(m[key])}`);
+  return t as GapType;
+}
+
+/** A sentence's buckets, and the type of its vectors' position gaps. */
+interface Table {
+  buckets: Uint32Array;
+  it: GapType;
+}
+
+function table(m: Map_, where: string): Table {
+  const bt = gapType(m, 'btype', where);
+  const it = gapType(m, 'itype', where);
+  const bin = m.buckets;
+  if (!(bin instanceof Uint8Array)) bad(`${where}: expected \`buckets\` to be bin data`);
+  const n = gapCount(bin as Uint8Array, bt);
+  const buckets = new Uint32Array(Math.max(n, 0));
+  const why = readGaps(bin as Uint8Array, bt, buckets, 0, 2 ** 32);
+  if (why !== null) bad(`${where}: \`buckets\`: ${why}`);
+  return { buckets, it };
+}
+
+function part(m: Map_, where: string, ik: string, vk: string, tk: string, real: boolean, tab: Table): { idx: Uint32Array; val: Values } {
   const idx = m[ik];
   const val = m[vk];
   const t = m[tk];
-  if (!(idx instanceof Uint8Array) || idx.byteLength % 4 !== 0) bad(`${where}: expected \`${ik}\` to be bin data of uint32 values`);
+  if (!(idx instanceof Uint8Array)) bad(`${where}: expected \`${ik}\` to be bin data`);
+  const count = gapCount(idx as Uint8Array, tab.it);
+  const indices = new Uint32Array(Math.max(count, 0));
+  const why = readGaps(idx as Uint8Array, tab.it, indices, 0, tab.buckets.length);
+  if (why !== null) bad(`${where}: \`${ik}\` (positions in \`buckets\`): ${why}`);
   const allowed = real ? ['<f4', '<f8'] : ['<i1', '<i2', '<i4'];
   if (typeof t !== 'string' || !allowed.includes(t)) bad(`${where}: expected \`${tk}\` to be one of ${allowed.map((k) => `\`${k}\``).join(', ')}, got ${show(t)}`);
   const width = WIDTH[t as ValueType];
-  if (!(val instanceof Uint8Array) || val.byteLength !== (idx as Uint8Array).byteLength / 4 * width) bad(`${where}: expected \`${vk}\` to hold one ${t} value per index`);
-  const indices = view(idx as Uint8Array, 4, (b, o, n) => new Uint32Array(b, o, n));
-  for (let k = 1; k < indices.length; k++) if (indices[k] <= indices[k - 1]) bad(`${where}: expected \`${ik}\` in ascending order, got ${indices[k - 1]} before ${indices[k]}`);
+  if (!(val instanceof Uint8Array) || val.byteLength !== count * width) bad(`${where}: expected \`${vk}\` to hold one ${t} value per index`);
+  for (let k = 0; k < count; k++) indices[k] = tab.buckets[indices[k]];
   return { idx: indices, val: valuesOf(val as Uint8Array, t as ValueType) };
 }
 
-function vector(m: Map_, where: string): StoredVector {
-  const a = part(m, where, 'idx', 'val', 'dtype', false);
-  const b = part(m, where, 'ridx', 'rval', 'rdtype', true);
+function vector(m: Map_, where: string, tab: Table): StoredVector {
+  const a = part(m, where, 'idx', 'val', 'dtype', false, tab);
+  const b = part(m, where, 'ridx', 'rval', 'rdtype', true, tab);
   return { idx: a.idx, val: a.val, ridx: b.idx, rval: b.val };
 }
 
@@ -233,7 +353,8 @@ export function toShardSentence(raw: Decoded): ShardSentence {
   const fold = raw.fold === null ? null : int(raw, 'fold', where);
   const flag = raw.flag;
   if (flag !== null && flag !== 'no-candidates') bad(`${where}: expected \`flag\` to be nil or "no-candidates", got ${show(flag)}`);
-  const ref = raw.ref === null ? null : isMap(raw.ref) ? vector(raw.ref, `${where}, ref`) : bad(`${where}: expected \`ref\` to be a map or nil`);
+  const tab = table(raw, where);
+  const ref = raw.ref === null ? null : isMap(raw.ref) ? vector(raw.ref, `${where}, ref`, tab) : bad(`${where}: expected \`ref\` to be a map or nil`);
   const list = raw.cands;
   if (!Array.isArray(list)) bad(`${where}: expected \`cands\` to be a list`);
   const cands: ShardCandidate[] = (list as Decoded[]).map((c, k) => {
@@ -241,7 +362,7 @@ export function toShardSentence(raw: Decoded): ShardSentence {
     if (!isMap(c)) bad(`${at}: expected a map`);
     const score = c.score;
     if (typeof score !== 'number') bad(`${at}: expected \`score\` to be a number`);
-    return { score: score as number, rank: int(c, 'rank', at), matched: int(c, 'matched', at), test: int(c, 'test', at), diff: vector(c, at) };
+    return { score: score as number, rank: int(c, 'rank', at), matched: int(c, 'matched', at), test: int(c, 'test', at), diff: vector(c, at, tab) };
   });
   if (cands.length > 0 && ref === null) bad(`${where}: expected a \`ref\` vector for a list with candidates`);
   return { id: id as string, pos: int(raw, 'pos', where), fold, gold: int(raw, 'gold', where), len: int(raw, 'len', where), flag: flag as ShardSentence['flag'], ref, cands };
@@ -299,6 +420,9 @@ export class RankingListDecoder {
   private matched = new Int32Array(64);
   private test = new Int32Array(64);
   private start = new Int32Array(65);
+  private table = new Uint32Array(4096);
+  private nTable = 0;
+  private it: GapType = '<u1';
   private b: Uint8Array = new Uint8Array(0);
   private v: DataView = new DataView(new ArrayBuffer(0));
   private o = 0;
@@ -397,11 +521,44 @@ export class RankingListDecoder {
     this.val = v;
   }
 
-  /** One part (indices bin, values bin, dtype) appended at `n`; returns the new length. */
+  /** A gap type string (`<u1`, `<u2`, `<u4`). */
+  private gapType(): GapType {
+    const n = this.strLen();
+    this.need(n);
+    if (n !== 3 || this.b[this.o] !== 0x3c /* < */ || this.b[this.o + 1] !== 0x75 /* u */) throw MISMATCH;
+    const w = this.b[this.o + 2];
+    this.o += 3;
+    if (w === 0x31) return '<u1';
+    if (w === 0x32) return '<u2';
+    if (w === 0x34) return '<u4';
+    throw MISMATCH;
+  }
+
+  /** The sentence's buckets (gaps of type bt, at `at` in the record) into `table`. */
+  private readTable(at: number, bytes: number, bt: GapType): void {
+    const width = bt === '<u1' ? 1 : bt === '<u2' ? 2 : 4;
+    if (bytes % width !== 0) throw MISMATCH;
+    const n = bytes / width;
+    if (this.table.length < n) this.table = new Uint32Array(Math.max(n, 2 * this.table.length));
+    const v = this.v;
+    const table = this.table;
+    let x = 0;
+    for (let k = 0; k < n; k++) {
+      const g = width === 1 ? this.b[at + k] : width === 2 ? v.getUint16(at + 2 * k, true) : v.getUint32(at + 4 * k, true);
+      if (k > 0 && g === 0) throw MISMATCH;
+      x += g;
+      if (x >= 2 ** 32) throw MISMATCH;
+      table[k] = x;
+    }
+    this.nTable = n;
+  }
+
+  /** One part (positions bin, values bin, dtype) appended at `n` as buckets; returns the new length. */
   private part(n: number, ik: Uint8Array, vk: Uint8Array, tk: Uint8Array, real: boolean): number {
+    const width = this.it === '<u1' ? 1 : this.it === '<u2' ? 2 : 4;
     this.key(ik);
     const ib = this.binLen();
-    if (ib % 4 !== 0) throw MISMATCH;
+    if (ib % width !== 0) throw MISMATCH;
     this.need(ib);
     const iAt = this.o;
     this.o += ib;
@@ -412,18 +569,22 @@ export class RankingListDecoder {
     this.o += vb;
     this.key(tk);
     const t = this.dtype(real);
-    const count = ib / 4;
+    const count = ib / width;
     if (vb !== count * WIDTH[t]) throw MISMATCH;
     this.grow(n + count);
     const v = this.v;
+    const b = this.b;
     const idx = this.idx;
     const val = this.val;
-    let prev = -1;
+    const table = this.table;
+    const size = this.nTable;
+    let p = 0;
     for (let k = 0; k < count; k++) {
-      const x = v.getUint32(iAt + 4 * k, true);
-      if (x <= prev) throw MISMATCH;
-      prev = x;
-      idx[n + k] = x;
+      const g = width === 1 ? b[iAt + k] : width === 2 ? v.getUint16(iAt + 2 * k, true) : v.getUint32(iAt + 4 * k, true);
+      if (k > 0 && g === 0) throw MISMATCH;
+      p += g;
+      if (p >= size) throw MISMATCH;
+      idx[n + k] = table[p];
     }
     switch (t) {
       case '<i1': for (let k = 0; k < count; k++) val[n + k] = v.getInt8(vAt + k); break;
@@ -436,7 +597,7 @@ export class RankingListDecoder {
   }
 
   private sentence(): RankingList {
-    if (this.byte() !== 0x88) throw MISMATCH;
+    if (this.byte() !== 0x8b) throw MISMATCH;
     this.key(KEY.id);
     const idLen = this.strLen();
     this.need(idLen);
@@ -461,6 +622,15 @@ export class RankingListDecoder {
     this.need(1);
     if (this.b[this.o] === 0xc0) this.o++;
     else this.skipStr();
+    this.key(KEY.buckets);
+    const tb = this.binLen();
+    this.need(tb);
+    const tAt = this.o;
+    this.o += tb;
+    this.key(KEY.btype);
+    this.readTable(tAt, tb, this.gapType());
+    this.key(KEY.itype);
+    this.it = this.gapType();
     this.key(KEY.ref);
     this.need(1);
     if (this.b[this.o] === 0xc0) this.o++;

@@ -80,7 +80,7 @@ export function buildPipeline(raw: unknown, name: string, context: ConfigureCont
   const configured = templates.map((b) => TEMPLATES.get(b.template)!.configure(b.options, context));
   const scoring = opt('score-candidates.v1');
   const hashing = opt('hash-features.v2');
-  const encode = opt('encode-shard.v2');
+  const encode = opt('encode-shard.v3');
   return {
     config: { format: PIPELINE_FORMAT, stages, templates },
     templates: configured,

@@ -79,6 +79,7 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
         gold: goldCount,
         len: gold.wordNodes.length,
         flag: trees.length === 0 ? 'no-candidates' : null,
+        buckets: vectors.buckets,
         ref: vectors.ref,
         cands: trees.map((_, k) => ({
           score: job.candidates[kept[k]].score,
@@ -87,6 +88,7 @@ export function createSentenceChain(pipeline: Pipeline): SentenceChain {
           test: counts[k].test,
           idx: vectors.diffs[k].idx,
           val: vectors.diffs[k].val,
+          pos: vectors.diffs[k].pos,
         })),
       });
       return { pos: job.pos, bytes, rawBytes, candidates: trees.length, dropped, varying: vectors.varying, templateCounts: vectors.templateCounts };

@@ -1,6 +1,6 @@
 /**
- * Stage `encode-shard.v2`: one sentence → its shard record (format
- * `sheaf-shards/2`, bytes fixed in formats/shard-record.ts), compressed on its
+ * Stage `encode-shard.v3`: one sentence → its shard record (format
+ * `sheaf-shards/3`, bytes fixed in formats/shard-record.ts), compressed on its
  * own as one gzip member. Concatenated gzip members are one valid gzip
  * stream, so a shard file is readable by any gzip reader, the workers
  * compress in parallel, and the bytes never depend on how many there are.
@@ -11,7 +11,7 @@ import { encodeSentence, type SentenceToEncode } from '../formats/shard-record.j
 import type { StageSpec } from './stage.js';
 
 export const encodeShardSpec: StageSpec = {
-  id: 'encode-shard.v2',
+  id: 'encode-shard.v3',
   summary: 'encode each sentence as a MessagePack map (reference vector + per-candidate differences), one gzip member each',
   needs: ['id', 'counts', 'vectors'],
   adds: ['bytes'],

@@ -107,7 +107,7 @@ describe('fuzz: fold plans', () => {
 describe('fuzz: manifests and journals', () => {
   const d = `sha256:${'ab'.repeat(32)}`;
   const manifest = {
-    format: 'sheaf-shards/2', tool: { name: 'sheaf', version: '0.1.0' },
+    format: 'sheaf-shards/3', tool: { name: 'sheaf', version: '0.1.0' },
     pipeline: { digest: d, config: { format: 'sheaf-pipeline/1', stages: [], templates: [] }, files: 'pipeline-files.msgpack' },
     hashing: { bits: 20, seed: 0, rule: 'r', dropUniform: true }, compression: { method: 'gzip', level: 6, unit: 'sentence' }, record: {},
     inputs: { gold: { path: 'g', bytes: 1, sha256: d }, nbest: [{ path: 'n', bytes: 1, sha256: d, records: 3 }], plan: null },
@@ -131,7 +131,7 @@ describe('fuzz: manifests and journals', () => {
   });
 
   it('damaged journals: the last good state (shard names plain) or none, never an exception', () => {
-    const header = { format: 'sheaf-shards/2', pipeline: d, inputs: {} };
+    const header = { format: 'sheaf-shards/3', pipeline: d, inputs: {} };
     const state = emptyState();
     const good = headerLine(header, state) + shardLine(0, { ...state, shards: [manifest.shards[0]], consumed: 1, written: 1 }) + shardLine(1, { ...state, shards: manifest.shards, consumed: 3, written: 2, rejected: 1 });
     fc.assert(fc.property(fc.oneof(damageArb.map((e) => ({ bytes: e, ops: null })), opsArb.map((o) => ({ bytes: null, ops: o }))), ({ bytes, ops }) => {
