@@ -32,7 +32,7 @@ import { createVocabulary } from '../dist/core/interner.js';
 import { normaliseTree } from '../dist/core/normalise.js';
 import { SentenceScorer } from '../dist/core/parseval.js';
 import { parseTree } from '../dist/core/read-brackets.js';
-import { yieldOf } from '../dist/core/tree.js';
+import { TreeArena, TreeBuilder, yieldOf } from '../dist/core/tree.js';
 import { writeTree } from '../dist/core/write-brackets.js';
 import { directVectors } from '../dist/features/direct-vectors.js';
 import { MsgpackWriter } from '../dist/formats/msgpack.js';
@@ -118,7 +118,13 @@ function inProcess(label, input) {
   const pipeline = loadPipeline(pipelineFile);
   const jobs = jobsOf(input, 600);
   const vocab = createVocabulary();
-  const floor = rate(jobs, (j) => { for (const c of j.candidates) normaliseTree(parseTree(c.tree, vocab)); });
+  // The floor builds its trees as the chain does: into an arena handed out again per list.
+  const arena = new TreeArena();
+  const builder = new TreeBuilder(vocab, arena);
+  const floor = rate(jobs, (j) => {
+    arena.reset();
+    for (const c of j.candidates) normaliseTree(parseTree(c.tree, vocab, { builder }), {}, builder);
+  });
   const chain = createSentenceChain(pipeline);
   const diff = rate(jobs, (j) => chain.run(j));
   const parse = parseCandidates(pipeline.parse);

@@ -14,7 +14,7 @@
  */
 import { DataError } from './errors.js';
 import type { Vocabulary } from './interner.js';
-import { scratchBuilder, TreeBuilder, treeFromData, type Tree } from './tree.js';
+import { scratchBuilder, TreeBuilder, treeFromData, treeRoom, type TreeArena, type Tree } from './tree.js';
 
 const OPEN = 40; // (
 const CLOSE = 41; // )
@@ -159,24 +159,24 @@ function finish(b: TreeBuilder, wrapped: boolean): Tree {
   // Drop the unlabeled wrapper when it holds exactly one constituent.
   const tree = b.finish();
   const first = 1;
-  if (tree.end[first] === tree.size && !tree.isWord[first]) return dropRoot(tree);
+  if (tree.end[first] === tree.size && !tree.isWord[first]) return dropRoot(tree, b.arena);
   return tree;
 }
 
 /** The same tree without node 0 (whose only child is node 1). */
-function dropRoot(t: Tree): Tree {
+function dropRoot(t: Tree, arena: TreeArena | null): Tree {
   const n = t.size - 1;
   const w = t.wordNodes.length;
-  const data = new Int32Array(6 * n + w);
-  data.set(t.sym.subarray(1), 0);
-  data.set(t.isWord.subarray(1), n);
-  data.set(t.start.subarray(1), 4 * n);
-  data.set(t.stop.subarray(1), 5 * n);
+  const { data, at } = treeRoom(arena, 6 * n + w);
+  data.set(t.sym.subarray(1), at);
+  data.set(t.isWord.subarray(1), at + n);
+  data.set(t.start.subarray(1), at + 4 * n);
+  data.set(t.stop.subarray(1), at + 5 * n);
   for (let k = 0; k < n; k++) {
-    data[2 * n + k] = t.end[k + 1] - 1;
-    data[3 * n + k] = t.parent[k + 1] - 1;
+    data[at + 2 * n + k] = t.end[k + 1] - 1;
+    data[at + 3 * n + k] = t.parent[k + 1] - 1;
   }
-  data[3 * n] = -1;
-  for (let k = 0; k < w; k++) data[6 * n + k] = t.wordNodes[k] - 1;
-  return treeFromData(t.vocab, data, n, w);
+  data[at + 3 * n] = -1;
+  for (let k = 0; k < w; k++) data[at + 6 * n + k] = t.wordNodes[k] - 1;
+  return treeFromData(t.vocab, data, n, w, at);
 }

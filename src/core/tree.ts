@@ -81,7 +81,8 @@ export class TreeBuilder {
   private nWords = 0;
   private depth = 0;
 
-  constructor(readonly vocab: Vocabulary) {}
+  /** `arena`: where finished trees live (see TreeArena); without one each tree gets a buffer of its own. */
+  constructor(readonly vocab: Vocabulary, readonly arena: TreeArena | null = null) {}
 
   reset(): void {
     this.n = 0;
@@ -172,32 +173,67 @@ export class TreeBuilder {
   finish(): Tree {
     const n = this.n;
     const w = this.nWords;
-    const data = new Int32Array(6 * n + w);
-    data.set(this.sym.subarray(0, n), 0);
-    data.set(this.isWord.subarray(0, n), n);
-    data.set(this.end.subarray(0, n), 2 * n);
-    data.set(this.parent.subarray(0, n), 3 * n);
-    data.set(this.start.subarray(0, n), 4 * n);
-    data.set(this.stop.subarray(0, n), 5 * n);
-    data.set(this.words.subarray(0, w), 6 * n);
-    return treeFromData(this.vocab, data, n, w);
+    const { data, at } = treeRoom(this.arena, 6 * n + w);
+    data.set(this.sym.subarray(0, n), at);
+    data.set(this.isWord.subarray(0, n), at + n);
+    data.set(this.end.subarray(0, n), at + 2 * n);
+    data.set(this.parent.subarray(0, n), at + 3 * n);
+    data.set(this.start.subarray(0, n), at + 4 * n);
+    data.set(this.stop.subarray(0, n), at + 5 * n);
+    data.set(this.words.subarray(0, w), at + 6 * n);
+    return treeFromData(this.vocab, data, n, w, at);
   }
 }
 
-/** A tree over one buffer laid out as built by TreeBuilder.finish. */
-export function treeFromData(vocab: Vocabulary, data: Int32Array, n: number, w: number): Tree {
+/**
+ * Memory for trees that die together: the trees of one n-best list and its
+ * gold tree, say. Trees taken from an arena are views into one slab instead
+ * of a buffer each (a typed array of its own costs an allocation outside the
+ * JS heap, which was most of building a tree). reset() hands the slab out
+ * again: call it only when no tree taken since the last reset is used any
+ * more (the per-sentence chain does, before each list).
+ */
+export class TreeArena {
+  private slab = new Int32Array(1 << 16);
+  private used = 0;
+
+  reset(): void {
+    this.used = 0;
+  }
+
+  /** `n` elements: the slab and where they start in it. */
+  take(n: number): { data: Int32Array; at: number } {
+    if (this.used + n > this.slab.length) {
+      // Trees already taken keep the old slab alive; the new one serves from here on.
+      this.slab = new Int32Array(Math.max(2 * this.slab.length, n));
+      this.used = 0;
+    }
+    const at = this.used;
+    this.used += n;
+    return { data: this.slab, at };
+  }
+}
+
+/** Room for a tree of `n` elements: from the arena, or a buffer of its own without one. */
+export function treeRoom(arena: TreeArena | null, n: number): { data: Int32Array; at: number } {
+  return arena ? arena.take(n) : { data: new Int32Array(n), at: 0 };
+}
+
+/** A tree over one buffer laid out as built by TreeBuilder.finish, from `at`. */
+export function treeFromData(vocab: Vocabulary, data: Int32Array, n: number, w: number, at = 0): Tree {
   return {
     vocab,
     size: n,
-    sym: data.subarray(0, n),
-    isWord: data.subarray(n, 2 * n),
-    end: data.subarray(2 * n, 3 * n),
-    parent: data.subarray(3 * n, 4 * n),
-    start: data.subarray(4 * n, 5 * n),
-    stop: data.subarray(5 * n, 6 * n),
-    wordNodes: data.subarray(6 * n, 6 * n + w),
+    sym: data.subarray(at, at + n),
+    isWord: data.subarray(at + n, at + 2 * n),
+    end: data.subarray(at + 2 * n, at + 3 * n),
+    parent: data.subarray(at + 3 * n, at + 4 * n),
+    start: data.subarray(at + 4 * n, at + 5 * n),
+    stop: data.subarray(at + 5 * n, at + 6 * n),
+    wordNodes: data.subarray(at + 6 * n, at + 6 * n + w),
   };
 }
+
 
 const scratchBuilders = new WeakMap<Vocabulary, TreeBuilder>();
 

@@ -12,7 +12,7 @@
  */
 import { DataError } from '../core/errors.js';
 import { createVocabulary } from '../core/interner.js';
-import type { Tree } from '../core/tree.js';
+import { TreeArena, TreeBuilder, type Tree } from '../core/tree.js';
 import type { SentenceVectors, VectorExtractor } from '../features/extract-vectors.js';
 import type { Pipeline } from '../pipeline/pipeline.js';
 import type { CandidateText, DroppedCandidate, SentenceJob, SentenceResult } from '../records.js';
@@ -46,18 +46,26 @@ export interface SentenceChain {
 export function createSentenceChain(pipeline: Pipeline): SentenceChain {
   // A fresh vocabulary now and then keeps interner memory bounded; ids never reach the output.
   let vocab = createVocabulary();
+  // A list's trees die with its job: they live in one arena, handed out again for every job.
+  const arena = new TreeArena();
+  let builder = new TreeBuilder(vocab, arena);
   let jobs = 0;
   const featurise = createFeaturiser(pipeline);
   const score = scoreOrDrop(pipeline.scoring);
   const encode = encodeShard(pipeline.encode);
 
   const run = (job: SentenceJob): SentenceResult => {
-    if (++jobs % 20000 === 0) vocab = createVocabulary();
+    if (++jobs % 20000 === 0) {
+      vocab = createVocabulary();
+      builder = new TreeBuilder(vocab, arena);
+    }
+    // The previous job's trees are gone (only bytes and counts left it).
+    arena.reset();
     try {
-      const gold = parseNormalised(job.gold, vocab, pipeline.parse, 'the gold tree');
+      const gold = parseNormalised(job.gold, vocab, pipeline.parse, 'the gold tree', builder);
       // A candidate whose tree does not parse, or whose words differ from the gold's, is dropped, not the
       // list; ranks stay the base parser's.
-      const parsed = featurise.parseUsable(job.candidates, vocab);
+      const parsed = featurise.parseUsable(job.candidates, vocab, builder);
       const { gold: goldCount, kept, counts, dropped: mismatched } = score(gold, parsed.trees, parsed.ranks);
       const dropped = mergeByRank(parsed.unparsable, mismatched);
       // No usable candidate at all: the list and the gold sentence disagree (a wrong join, a re-tokenised

@@ -3,7 +3,7 @@ import { DataError } from '../core/errors.js';
 import type { Vocabulary } from '../core/interner.js';
 import { normaliseTree } from '../core/normalise.js';
 import { parseTree } from '../core/read-brackets.js';
-import type { Tree } from '../core/tree.js';
+import type { Tree, TreeBuilder } from '../core/tree.js';
 import type { CandidateText, DroppedCandidate } from '../records.js';
 import type { StageSpec } from './stage.js';
 
@@ -23,16 +23,19 @@ export interface ParseOptions {
   dropEmpty: boolean;
 }
 
-/** Parses one tree text; `what` names it in errors (`candidate 3`, `the gold tree`). */
-export function parseNormalised(text: string, vocab: Vocabulary, options: ParseOptions, what: string): Tree {
+/**
+ * Parses one tree text; `what` names it in errors (`candidate 3`, `the gold tree`).
+ * `builder`: builds the trees (its arena, if any, is where they live).
+ */
+export function parseNormalised(text: string, vocab: Vocabulary, options: ParseOptions, what: string, builder?: TreeBuilder): Tree {
   let tree: Tree;
   try {
-    tree = parseTree(text, vocab);
+    tree = parseTree(text, vocab, { builder });
   } catch (e) {
     if (e instanceof DataError) throw new DataError(e.code, `${what} does not parse (at its line ${e.line}, column ${e.column}): ${e.reason}`);
     throw e;
   }
-  const n = normaliseTree(tree, { stripTags: options.stripFunctionTags, dropEmpty: options.dropEmpty });
+  const n = normaliseTree(tree, { stripTags: options.stripFunctionTags, dropEmpty: options.dropEmpty }, builder);
   if (!n) throw new DataError('empty-tree', `${what} holds only empty elements`);
   return n;
 }
@@ -48,13 +51,13 @@ export function parseCandidates(options: ParseOptions) {
  * tree a base parser garbled costs that candidate, not its list.
  */
 export function parseUsableCandidates(options: ParseOptions) {
-  return (candidates: readonly CandidateText[], vocab: Vocabulary): { trees: Tree[]; ranks: number[]; unparsable: DroppedCandidate[] } => {
+  return (candidates: readonly CandidateText[], vocab: Vocabulary, builder?: TreeBuilder): { trees: Tree[]; ranks: number[]; unparsable: DroppedCandidate[] } => {
     const trees: Tree[] = [];
     const ranks: number[] = [];
     const unparsable: DroppedCandidate[] = [];
     candidates.forEach((c, k) => {
       try {
-        trees.push(parseNormalised(c.tree, vocab, options, `candidate ${k}`));
+        trees.push(parseNormalised(c.tree, vocab, options, `candidate ${k}`, builder));
         ranks.push(k);
       } catch (e) {
         if (!(e instanceof DataError)) throw e;
