@@ -22,8 +22,13 @@ export function loneSurrogateAt(s: string): number {
   return -1;
 }
 
+/** String.prototype.isWellFormed (ES2024; native in Node 20), where there is one: the JS loop otherwise. */
+const isWellFormed: ((this: string) => boolean) | undefined = (String.prototype as { isWellFormed?: (this: string) => boolean }).isWellFormed;
+
 /** Why `s` cannot stand for `what` (a lone surrogate at …), or null. */
 export function notWellFormed(s: string, what: string): string | null {
+  // Every candidate tree of every list passes here: the native check first, the position only for the message.
+  if (isWellFormed !== undefined && isWellFormed.call(s)) return null;
   const at = loneSurrogateAt(s);
   if (at < 0) return null;
   return `expected ${what} to be Unicode text, got a lone surrogate \\u${s.charCodeAt(at).toString(16)} at character ${at + 1} (UTF-8 cannot hold it, so it would turn into U+FFFD)`;

@@ -147,18 +147,30 @@ export async function* decodeText(chunks: AsyncIterable<Buffer>): AsyncGenerator
   const open: Buffer[] = [];
   let openBytes = 0;
   for await (const chunk of chunks) {
-    if (chunk.indexOf(10) < 0 && (carry?.length ?? 0) + openBytes + chunk.length < CHUNK) {
+    const nl = chunk.indexOf(10);
+    if (nl < 0 && (carry?.length ?? 0) + openBytes + chunk.length < CHUNK) {
       open.push(chunk);
       openBytes += chunk.length;
       continue;
     }
-    const buf: Buffer = carry || open.length ? Buffer.concat([...(carry ? [carry] : []), ...open, chunk]) : chunk;
-    open.length = 0;
-    openBytes = 0;
+    let buf: Buffer = chunk;
+    if (carry || open.length) {
+      // The open line ends in this chunk: finish it as a piece of its own, so that the rest of the
+      // chunk is not copied (joining carry and chunk copied every chunk: 5 % of the main thread).
+      const head = nl >= 0 ? chunk.subarray(0, nl + 1) : chunk;
+      const joined = Buffer.concat([...(carry ? [carry] : []), ...open, head]);
+      carry = null;
+      open.length = 0;
+      openBytes = 0;
+      if (nl >= 0) {
+        yield emit(joined);
+        buf = chunk.subarray(nl + 1);
+      } else buf = joined;
+    }
     let cut = buf.lastIndexOf(10) + 1;
     if (cut === 0) {
       if (buf.length < CHUNK) {
-        carry = buf;
+        carry = buf.length > 0 ? Buffer.from(buf) : null;
         continue;
       }
       // One very long line: cut at a character boundary and go on.

@@ -6,7 +6,7 @@
  * (and compressed) by the workers; this only appends, counts and digests.
  */
 import { createHash, type Hash } from 'node:crypto';
-import { closeSync, openSync, renameSync, writeSync } from 'node:fs';
+import { closeSync, openSync, renameSync, writeSync, writevSync } from 'node:fs';
 import { join } from 'node:path';
 import { encodeCounts } from '../formats/counts-file.js';
 import type { WriterState } from '../formats/journal.js';
@@ -105,10 +105,13 @@ export class ShardWriter {
 
   private flush(): void {
     if (this.pendingBytes === 0) return;
-    const all = Buffer.concat(this.pending, this.pendingBytes);
-    let off = 0;
     try {
-      while (off < all.length) off += writeSync(this.fd, all, off, all.length - off);
+      // The records as they are (no joined copy); a short write goes on from a joined copy of the rest.
+      let off = writevSync(this.fd, this.pending);
+      if (off < this.pendingBytes) {
+        const all = Buffer.concat(this.pending, this.pendingBytes);
+        while (off < all.length) off += writeSync(this.fd, all, off, all.length - off);
+      }
     } catch (e) {
       // A write carries no path of its own: name the shard.
       throw environmentError(e, join(this.dir, shardName(this.state.shards.length, this.options.compressed)), 'write');
