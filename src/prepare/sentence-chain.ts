@@ -11,14 +11,13 @@
  * change the output.
  */
 import { DataError } from '../core/errors.js';
-import { createVocabulary } from '../core/interner.js';
-import { TreeArena, TreeBuilder, type Tree } from '../core/tree.js';
+import type { Tree } from '../core/tree.js';
 import type { SentenceVectors, VectorExtractor } from '../features/extract-vectors.js';
 import type { Pipeline } from '../pipeline/pipeline.js';
 import type { CandidateText, DroppedCandidate, SentenceJob, SentenceResult } from '../records.js';
 import { encodeShard } from '../stages/encode-shard.js';
 import { extractFeatures } from '../stages/extract-features.js';
-import { parseNormalised, parseUsableCandidates } from '../stages/parse-candidates.js';
+import { JobTrees, parseNormalised, parseUsableCandidates } from '../stages/parse-candidates.js';
 import { scoreOrDrop } from '../stages/score-candidates.js';
 
 /** parse → extract → hash, for one list: no gold needed. */
@@ -44,23 +43,14 @@ export interface SentenceChain {
 }
 
 export function createSentenceChain(pipeline: Pipeline): SentenceChain {
-  // A fresh vocabulary now and then keeps interner memory bounded; ids never reach the output.
-  let vocab = createVocabulary();
-  // A list's trees die with its job: they live in one arena, handed out again for every job.
-  const arena = new TreeArena();
-  let builder = new TreeBuilder(vocab, arena);
-  let jobs = 0;
+  const lists = new JobTrees();
   const featurise = createFeaturiser(pipeline);
   const score = scoreOrDrop(pipeline.scoring);
   const encode = encodeShard(pipeline.encode);
 
   const run = (job: SentenceJob): SentenceResult => {
-    if (++jobs % 20000 === 0) {
-      vocab = createVocabulary();
-      builder = new TreeBuilder(vocab, arena);
-    }
-    // The previous job's trees are gone (only bytes and counts left it).
-    arena.reset();
+    lists.next();
+    const { vocab, builder } = lists;
     try {
       const gold = parseNormalised(job.gold, vocab, pipeline.parse, 'the gold tree', builder);
       // A candidate whose tree does not parse, or whose words differ from the gold's, is dropped, not the

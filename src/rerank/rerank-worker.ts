@@ -7,12 +7,12 @@
  * parses, and says why.
  */
 import { DataError } from '../core/errors.js';
-import { createVocabulary } from '../core/interner.js';
 import { dot, splitParts } from '../core/sparse-vector.js';
 import { rebuildPipeline } from '../pipeline/pipeline.js';
 import type { JobHandler } from '../pool/ordered-pool.js';
 import { createFeaturiser } from '../prepare/sentence-chain.js';
 import type { CandidateText, PipelineConfig } from '../records.js';
+import { JobTrees } from '../stages/parse-candidates.js';
 import { pick, rankingList, scores } from '../train/ranking.js';
 
 export interface RerankInit {
@@ -35,12 +35,11 @@ export function createJobHandler(init: RerankInit): JobHandler<RerankJob, Rerank
   const pipeline = rebuildPipeline(init.config, init.files);
   const featurise = createFeaturiser(pipeline);
   const w = init.weights;
-  let vocab = createVocabulary();
-  let jobs = 0;
+  const trees = new JobTrees();
   const run = (job: RerankJob): RerankResult => {
-    if (++jobs % 20000 === 0) vocab = createVocabulary();
+    trees.next();
     if (job.candidates.length === 0) return { rank: -1, score: null, why: 'the list has no candidates' };
-    const parsed = featurise.parseUsable(job.candidates, vocab);
+    const parsed = featurise.parseUsable(job.candidates, trees.vocab, trees.builder);
     // Candidates whose trees do not parse are left out; the others are re-ranked (their base ranks kept).
     const skipped = parsed.unparsable.map((d) => ({ rank: d.rank, why: d.reason }));
     if (parsed.trees.length === 0) return { rank: -1, score: null, why: `no candidate tree of the ${job.candidates.length} parses; the first: ${parsed.unparsable[0].reason}` };

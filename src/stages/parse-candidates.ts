@@ -1,9 +1,9 @@
 /** Stage `parse-candidates.v1`: candidate tree texts → normalised trees. */
 import { DataError } from '../core/errors.js';
-import type { Vocabulary } from '../core/interner.js';
+import { createVocabulary, type Vocabulary } from '../core/interner.js';
 import { normaliseTree } from '../core/normalise.js';
 import { parseTree } from '../core/read-brackets.js';
-import type { Tree, TreeBuilder } from '../core/tree.js';
+import { TreeArena, TreeBuilder, type Tree } from '../core/tree.js';
 import type { CandidateText, DroppedCandidate } from '../records.js';
 import type { StageSpec } from './stage.js';
 
@@ -66,4 +66,26 @@ export function parseUsableCandidates(options: ParseOptions) {
     });
     return { trees, ranks, unparsable };
   };
+}
+
+/**
+ * The vocabulary and tree memory of a run of jobs (one list each). A list's
+ * trees die with its job (only bytes, counts or a pick leave it), so they
+ * live in one arena handed out again per job; a fresh vocabulary now and then
+ * keeps interner memory bounded (ids never leave a job either).
+ */
+export class JobTrees {
+  private readonly arena = new TreeArena();
+  private jobs = 0;
+  vocab = createVocabulary();
+  builder = new TreeBuilder(this.vocab, this.arena);
+
+  /** Call at the start of every job: the previous job's trees are gone from here on. */
+  next(): void {
+    if (++this.jobs % 20000 === 0) {
+      this.vocab = createVocabulary();
+      this.builder = new TreeBuilder(this.vocab, this.arena);
+    }
+    this.arena.reset();
+  }
 }
