@@ -167,7 +167,8 @@ function prepare(input, workers, name, tool = root, pipeline = pipelineFile) {
     const t0 = process.hrtime.bigint();
     const s = await runPrepare({ gold: ${JSON.stringify(input.gold)}, nbest: [${JSON.stringify(input.dump)}], pipeline: ${JSON.stringify(pipeline)}, out: ${JSON.stringify(out)}, workers: ${workers}, quiet: true });
     const secs = Number(process.hrtime.bigint() - t0) / 1e9;
-    console.log(JSON.stringify({ secs, rss: process.resourceUsage().maxRSS / 1024, candidates: s.candidates }));`);
+    const cpu = process.cpuUsage();
+    console.log(JSON.stringify({ secs, cpu: (cpu.user + cpu.system) / 1e6, rss: process.resourceUsage().maxRSS / 1024, candidates: s.candidates }));`);
   const r = spawnSync(process.execPath, [script], { encoding: 'utf8', maxBuffer: 1 << 26 });
   if (r.status !== 0) throw new Error(`prepare failed: ${r.stderr}`);
   const res = JSON.parse(r.stdout.trim().split('\n').pop());
@@ -194,6 +195,9 @@ function endToEnd(label, input, f1PerCandidate) {
   if (BASELINE) {
     const base = best(runs.base);
     console.log(`  baseline ${BASELINE}, 1 worker     ${n0(base.candidates / base.secs)} candidates/s   this one: ${(base.secs / one.secs).toFixed(2)}x (target >= 5)`);
+    // CPU seconds (all threads) drift less than wall time on a shared machine: the work per candidate, compared.
+    const cpu = (runs) => Math.min(...runs.map((r) => r.cpu));
+    console.log(`  CPU seconds, 1 worker: baseline ${cpu(runs.base).toFixed(1)}, this one ${cpu(runs.one).toFixed(1)}: ${(cpu(runs.base) / cpu(runs.one)).toFixed(2)}x less work`);
   }
   console.log(`  shard directory / input JSON Lines      ${(two.bytes / input.bytes).toFixed(2)} (target <= 1.0); format 1 / format 3: ${((f1PerCandidate * two.candidates) / two.bytes).toFixed(1)} (target >= 5)`);
   return two;
