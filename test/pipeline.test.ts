@@ -76,7 +76,8 @@ describe('pipeline files', () => {
     ['a template listed twice', (p: any) => extract(p).templates.push({ template: 'rules.v1' }), /listed twice/],
     ['an option named like an object built-in', (p: any) => { extract(p).templates[0].constructor = true; }, /unknown option `constructor`; expected one of: `lexical`/],
     ['an option named __proto__', (p: any) => { Object.defineProperty(extract(p).templates[0], '__proto__', { value: { x: 1 }, enumerable: true }); }, /unknown option `__proto__`/],
-    ['a stage of an older version, listing the current ones', (p: any) => { p.stages[5].stage = 'hash-features.v1'; }, /unknown stage `hash-features\.v1`; valid stages: .*`hash-features\.v2`/],
+    ['a stage of an older version, naming what replaced it', (p: any) => { p.stages[5].stage = 'hash-features.v1'; }, /stage `hash-features\.v1` was replaced by `hash-features\.v2` \(its option `pseudoConstant` is now `dropUniform`\)/],
+    ['the shard encoder of format 2, saying what must be made again', (p: any) => { p.stages[6].stage = 'encode-shard.v2'; }, /stages\[6\]: stage `encode-shard\.v2` was replaced by `encode-shard\.v3` \(shard format 3.*shards and models made with `encode-shard\.v2` must be made again/],
   ])('refuses %s', (_, change, message) => {
     const file = withChange(change);
     expect(() => loadPipeline(file)).toThrow(UsageError);

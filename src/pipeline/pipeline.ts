@@ -17,6 +17,18 @@ import { STAGES } from './stages.js';
 import type { PipelineConfig, TemplateBlock } from '../records.js';
 import { show } from '../core/show.js';
 
+
+/**
+ * Stages of earlier sheaf versions and what replaced them: a pipeline file, a
+ * shard manifest or a model naming one gets told what to do, not only that
+ * the name is unknown.
+ */
+const REPLACED_STAGES: Record<string, { by: string; why: string }> = {
+  'encode-shard.v1': { by: 'encode-shard.v3', why: 'shard format 3' },
+  'encode-shard.v2': { by: 'encode-shard.v3', why: 'shard format 3: buckets stored once per sentence, positions as gaps' },
+  'hash-features.v1': { by: 'hash-features.v2', why: 'its option `pseudoConstant` is now `dropUniform`' },
+};
+
 export const PIPELINE_FORMAT = 'sheaf-pipeline/1';
 
 export type { PipelineConfig, TemplateBlock } from '../records.js';
@@ -59,7 +71,16 @@ export function buildPipeline(raw: unknown, name: string, context: ConfigureCont
     const where = `${name}: stages[${k}]`;
     if (!isObject(block) || typeof block.stage !== 'string') throw new UsageError(`${where}: expected an object with a \`stage\` name; valid stages: ${list(byId.keys())}`);
     const spec = byId.get(block.stage);
-    if (!spec) throw new UsageError(`${where}: unknown stage \`${block.stage}\`; valid stages: ${list(byId.keys())}`);
+    if (!spec) {
+      const now = REPLACED_STAGES[block.stage];
+      if (now) {
+        throw new UsageError(
+          `${where}: stage \`${block.stage}\` was replaced by \`${now.by}\` (${now.why}): write \`${now.by}\` in a pipeline file; ` +
+            `shards and models made with \`${block.stage}\` must be made again (\`sheaf prepare\`, then \`sheaf train\`)`,
+        );
+      }
+      throw new UsageError(`${where}: unknown stage \`${block.stage}\`; valid stages: ${list(byId.keys())}`);
+    }
     const index = STAGES.indexOf(spec);
     if (index <= lastIndex) throw new UsageError(`${where}: stage \`${spec.id}\` is out of order or repeated; the order is: ${list(STAGES.map((s) => s.id))}`);
     lastIndex = index;
