@@ -87,4 +87,25 @@ describe('fast ranking-list decoder', () => {
       expect(() => fast.decode(bytes.subarray(0, cut), 0), `cut at ${cut}`).toThrow(MsgpackError);
     }
   });
+
+  it('leaves to the general decoder what it refuses: a flag other than "no-candidates", candidates without a reference', () => {
+    const rand = seededRandom(37);
+    const base = randomSentence(rand, 5);
+    const s = { ...base, cands: base.cands.length > 0 ? base.cands : [{ score: -1, rank: 0, matched: 1, test: 2, idx: Uint32Array.of(7), val: [1] }] };
+    const cases: [string, (x: SentenceToEncode) => SentenceToEncode, RegExp][] = [
+      ['an unknown flag', (x) => ({ ...x, flag: 'odd' as never }), /expected `flag` to be nil or "no-candidates"/],
+      ['candidates without a reference', (x) => ({ ...x, ref: null }), /expected a `ref` vector for a list with candidates/],
+    ];
+    for (const [what, change, message] of cases) {
+      const w = new MsgpackWriter();
+      encodeSentence(w, change(s));
+      const bytes = w.bytes();
+      expect(new RankingListDecoder().decode(bytes, 0), what).toBeNull();
+      expect(() => toShardSentence(decodeAll(bytes)[0]), what).toThrow(message);
+    }
+    // The flag the writer does write is read on the fast path.
+    const w = new MsgpackWriter();
+    encodeSentence(w, { ...s, cands: [], ref: null, flag: 'no-candidates' });
+    expect(new RankingListDecoder().decode(w.bytes(), 0)).not.toBeNull();
+  });
 });

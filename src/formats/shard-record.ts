@@ -53,6 +53,7 @@ const encoder = new TextEncoder();
 const KEY = Object.fromEntries(
   ['id', 'pos', 'fold', 'gold', 'len', 'flag', 'buckets', 'btype', 'itype', 'ref', 'cands', 'score', 'rank', 'matched', 'test', 'idx', 'val', 'dtype', 'ridx', 'rval', 'rdtype'].map((k) => [k, encoder.encode(k)]),
 );
+const NO_CANDIDATES = encoder.encode('no-candidates');
 const DTYPE = Object.fromEntries((['<i1', '<i2', '<i4', '<f4', '<f8', '<u1', '<u2', '<u4'] as const).map((t) => [t, encoder.encode(t)])) as Record<ValueType | GapType, Uint8Array>;
 
 /** The narrowest type that holds every value exactly (`real`: only float types); `n` values from 0. */
@@ -490,12 +491,6 @@ export class RankingListDecoder {
     throw MISMATCH;
   }
 
-  private skipStr(): void {
-    const n = this.strLen();
-    this.need(n);
-    this.o += n;
-  }
-
   /** A dtype string: its width and whether it is a float. */
   private dtype(real: boolean): ValueType {
     const n = this.strLen();
@@ -621,7 +616,7 @@ export class RankingListDecoder {
     this.key(KEY.flag);
     this.need(1);
     if (this.b[this.o] === 0xc0) this.o++;
-    else this.skipStr();
+    else this.key(NO_CANDIDATES); // the only flag there is; anything else is the general decoder's to name
     this.key(KEY.buckets);
     const tb = this.binLen();
     this.need(tb);
@@ -633,7 +628,8 @@ export class RankingListDecoder {
     this.it = this.gapType();
     this.key(KEY.ref);
     this.need(1);
-    if (this.b[this.o] === 0xc0) this.o++;
+    const hasRef = this.b[this.o] !== 0xc0;
+    if (!hasRef) this.o++;
     else {
       // The reference is not needed to rank: step over it, checking its shape.
       if (this.byte() !== 0x86) throw MISMATCH;
@@ -647,6 +643,8 @@ export class RankingListDecoder {
     else if (t === 0xdc) { this.need(2); m = this.v.getUint16(this.o); this.o += 2; }
     else if (t === 0xdd) { this.need(4); m = this.v.getUint32(this.o); this.o += 4; }
     else throw MISMATCH;
+    // A list with candidates has a reference (the general decoder says so).
+    if (m > 0 && !hasRef) throw MISMATCH;
     if (this.rank.length < m) {
       this.rank = new Int32Array(m * 2);
       this.matched = new Int32Array(m * 2);
