@@ -18,7 +18,8 @@ export type GapType = '<u1' | '<u2' | '<u4';
 
 export const GAP_TYPES: readonly GapType[] = ['<u1', '<u2', '<u4'];
 
-const WIDTH: Record<GapType, number> = { '<u1': 1, '<u2': 2, '<u4': 4 };
+/** Bytes per gap of each type. */
+export const GAP_WIDTH: Readonly<Record<GapType, number>> = { '<u1': 1, '<u2': 2, '<u4': 4 };
 
 /** The narrowest type for a largest gap of `max`. */
 export function gapTypeFor(max: number): GapType {
@@ -53,7 +54,7 @@ export function writeGaps(w: MsgpackWriter, a: ArrayLike<number>, from: number, 
 
 /** How many values a bin of gaps of type `t` holds, or -1 when its length is not a multiple of the width. */
 export function gapCount(bin: Uint8Array, t: GapType): number {
-  const w = WIDTH[t];
+  const w = GAP_WIDTH[t];
   return bin.byteLength % w === 0 ? bin.byteLength / w : -1;
 }
 
@@ -63,7 +64,7 @@ export function gapCount(bin: Uint8Array, t: GapType): number {
  */
 export function readGaps(bin: Uint8Array, t: GapType, out: Uint32Array, at: number, limit: number): string | null {
   const n = gapCount(bin, t);
-  if (n < 0) return `expected ${t} data (a multiple of ${WIDTH[t]} bytes), got ${bin.byteLength} bytes`;
+  if (n < 0) return `expected ${t} data (a multiple of ${GAP_WIDTH[t]} bytes), got ${bin.byteLength} bytes`;
   const v = new DataView(bin.buffer, bin.byteOffset, bin.byteLength);
   let x = 0;
   for (let k = 0; k < n; k++) {

@@ -41,7 +41,7 @@
 import { DataError } from '../core/errors.js';
 import { isStoredInteger, type StoredVector, type Values } from '../core/sparse-vector.js';
 import type { RankingList, ShardCandidate, ShardSentence } from '../records.js';
-import { asGapType, gapCount, gapTypeFor, largestGap, readGaps, writeGaps, type GapType } from './gaps.js';
+import { asGapType, GAP_WIDTH, gapCount, gapTypeFor, largestGap, readGaps, writeGaps, type GapType } from './gaps.js';
 import { MsgpackError, MsgpackWriter, type BinElement, type Decoded } from './msgpack.js';
 import { show } from '../core/show.js';
 
@@ -529,28 +529,18 @@ export class RankingListDecoder {
     throw MISMATCH;
   }
 
-  /** The sentence's buckets (gaps of type bt, at `at` in the record) into `table`. */
-  private readTable(at: number, bytes: number, bt: GapType): void {
-    const width = bt === '<u1' ? 1 : bt === '<u2' ? 2 : 4;
-    if (bytes % width !== 0) throw MISMATCH;
-    const n = bytes / width;
+  /** The sentence's buckets (a bin of gaps of type bt) into `table`. */
+  private readTable(bin: Uint8Array, bt: GapType): void {
+    const n = gapCount(bin, bt);
+    if (n < 0) throw MISMATCH;
     if (this.table.length < n) this.table = new Uint32Array(Math.max(n, 2 * this.table.length));
-    const v = this.v;
-    const table = this.table;
-    let x = 0;
-    for (let k = 0; k < n; k++) {
-      const g = width === 1 ? this.b[at + k] : width === 2 ? v.getUint16(at + 2 * k, true) : v.getUint32(at + 4 * k, true);
-      if (k > 0 && g === 0) throw MISMATCH;
-      x += g;
-      if (x >= 2 ** 32) throw MISMATCH;
-      table[k] = x;
-    }
+    if (readGaps(bin, bt, this.table, 0, 2 ** 32) !== null) throw MISMATCH;
     this.nTable = n;
   }
 
   /** One part (positions bin, values bin, dtype) appended at `n` as buckets; returns the new length. */
   private part(n: number, ik: Uint8Array, vk: Uint8Array, tk: Uint8Array, real: boolean): number {
-    const width = this.it === '<u1' ? 1 : this.it === '<u2' ? 2 : 4;
+    const width = GAP_WIDTH[this.it];
     this.key(ik);
     const ib = this.binLen();
     if (ib % width !== 0) throw MISMATCH;
@@ -623,7 +613,7 @@ export class RankingListDecoder {
     const tAt = this.o;
     this.o += tb;
     this.key(KEY.btype);
-    this.readTable(tAt, tb, this.gapType());
+    this.readTable(this.b.subarray(tAt, tAt + tb), this.gapType());
     this.key(KEY.itype);
     this.it = this.gapType();
     this.key(KEY.ref);
